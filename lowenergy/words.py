@@ -1,0 +1,346 @@
+"""Words over {0, 1}, index lists, shuffle and stuffle products, regularization.
+
+Conventions (see README, "Conventions"):
+
+* A *word* is a tuple of letters 0 and 1.  ``G(a1, ..., an; x)`` is the
+  iterated integral ``∫_0^x dt/(t - a1) G(a2, ..., an; t)``, so the first
+  letter sits next to the upper end point.
+* An *index list* ``(n1, ..., nk)`` stands for
+  ``ζ(n1, ..., nk) = Σ_{m1 > ... > mk ≥ 1} 1/(m1^n1 ... mk^nk)``: the first
+  index sits on the largest summation variable.  It is convergent iff
+  ``n1 ≥ 2``.
+* ``ζ(n1, ..., nk) = (-1)^k G(0^(n1-1), 1, ..., 0^(nk-1), 1; 1)``.
+
+Linear combinations are plain ``dict[key, coefficient]`` (coefficients are
+ints or :class:`fractions.Fraction`), so everything here is exact and works
+without any class of the package.  This module is the bottom layer.
+
+Examples
+--------
+>>> indices_to_word((2, 1))
+(0, 1, 1)
+>>> word_to_indices((0, 1, 1))
+(2, 1)
+>>> sorted(shuffle((0,), (1,)).items())
+[((0, 1), 1), ((1, 0), 1)]
+>>> sorted(stuffle((2,), (3,)).items())
+[((2, 3), 1), ((3, 2), 1), ((5,), 1)]
+>>> dual_word((0, 1, 1))   # ζ(2,1) = ζ(3)
+(0, 0, 1)
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from functools import lru_cache
+from typing import Dict, Iterable, Mapping, Tuple
+
+from .errors import InputError, RegularizationError
+
+__all__ = [
+    "Word",
+    "Indices",
+    "indices_to_word",
+    "word_to_indices",
+    "is_convergent_word",
+    "is_convergent_indices",
+    "compositions",
+    "admissible_indices",
+    "all_words",
+    "shuffle",
+    "stuffle",
+    "shuffle_many",
+    "dual_word",
+    "dual_indices",
+    "regularize_word",
+    "regularize_indices",
+    "add_into",
+]
+
+Word = Tuple[int, ...]
+Indices = Tuple[int, ...]
+Combination = Dict[tuple, Fraction]
+
+
+def add_into(target: dict, source: Mapping, factor=1) -> dict:
+    """``target += factor * source`` for dict-based linear combinations.
+
+    Zero coefficients are removed so that equal combinations compare equal.
+    """
+    for key, value in source.items():
+        new = target.get(key, 0) + factor * value
+        if new:
+            target[key] = new
+        else:
+            target.pop(key, None)
+    return target
+
+
+# --------------------------------------------------------------------------
+# index lists <-> words
+# --------------------------------------------------------------------------
+
+def indices_to_word(indices: Iterable[int]) -> Word:
+    """The word ``0^(n1-1) 1 0^(n2-1) 1 ...`` of an index list."""
+    word: list[int] = []
+    for n in indices:
+        if not isinstance(n, int) or isinstance(n, bool) or n < 1:
+            raise InputError(
+                f"MZV indices must be positive integers, got {n!r}",
+                hint="write e.g. zeta(3,5)",
+            )
+        word.extend([0] * (n - 1))
+        word.append(1)
+    return tuple(word)
+
+
+def word_to_indices(word: Word) -> Indices:
+    """Inverse of :func:`indices_to_word`; the word must end in the letter 1."""
+    if word and word[-1] != 1:
+        raise InputError(f"word {word} ends in 0 and is not an index list")
+    indices: list[int] = []
+    run = 0
+    for letter in word:
+        if letter == 0:
+            run += 1
+        elif letter == 1:
+            indices.append(run + 1)
+            run = 0
+        else:
+            raise InputError(f"letters of words are 0 and 1, got {letter!r}")
+    return tuple(indices)
+
+
+def is_convergent_word(word: Word) -> bool:
+    """True for the empty word and words starting with 0 and ending with 1."""
+    return not word or (word[0] == 0 and word[-1] == 1)
+
+
+def is_convergent_indices(indices: Indices) -> bool:
+    """True iff ``ζ(indices)`` converges (empty list, or first index ≥ 2)."""
+    return not indices or indices[0] >= 2
+
+
+def compositions(weight: int, first_min: int = 1) -> list[Indices]:
+    """All index lists of the given weight whose first index is ≥ first_min."""
+    out: list[Indices] = []
+
+    def rec(prefix: list[int], remaining: int) -> None:
+        if remaining == 0:
+            out.append(tuple(prefix))
+            return
+        lo = first_min if not prefix else 1
+        for n in range(lo, remaining + 1):
+            prefix.append(n)
+            rec(prefix, remaining - n)
+            prefix.pop()
+
+    if weight == 0:
+        return [()]
+    rec([], weight)
+    return out
+
+
+def admissible_indices(weight: int) -> list[Indices]:
+    """Convergent index lists of a weight (there are 2^(weight-2) for weight ≥ 2)."""
+    if weight == 1:
+        return []
+    return compositions(weight, first_min=2)
+
+
+def all_words(length: int) -> list[Word]:
+    """All 2^length words of a length, in lexicographic order."""
+    return [tuple((k >> (length - 1 - i)) & 1 for i in range(length)) for k in range(2 ** length)]
+
+
+# --------------------------------------------------------------------------
+# products
+# --------------------------------------------------------------------------
+
+@lru_cache(maxsize=200_000)
+def _shuffle_cached(u: Word, v: Word) -> tuple:
+    if not u:
+        return ((v, 1),)
+    if not v:
+        return ((u, 1),)
+    out: dict = {}
+    for w, c in _shuffle_cached(u[1:], v):
+        key = (u[0],) + w
+        out[key] = out.get(key, 0) + c
+    for w, c in _shuffle_cached(u, v[1:]):
+        key = (v[0],) + w
+        out[key] = out.get(key, 0) + c
+    return tuple(out.items())
+
+
+def shuffle(u: Word, v: Word) -> Dict[Word, int]:
+    """Shuffle product ``u ш v`` as ``{word: multiplicity}``.
+
+    Works for any alphabet (tuples of hashable letters).
+    """
+    return dict(_shuffle_cached(tuple(u), tuple(v)))
+
+
+def shuffle_many(*words: Word) -> Dict[Word, int]:
+    """Shuffle product of several words."""
+    result: Dict[Word, int] = {(): 1}
+    for w in words:
+        nxt: Dict[Word, int] = {}
+        for a, ca in result.items():
+            for b, cb in _shuffle_cached(a, tuple(w)):
+                nxt[b] = nxt.get(b, 0) + ca * cb
+        result = nxt
+    return result
+
+
+@lru_cache(maxsize=200_000)
+def _stuffle_cached(u: Indices, v: Indices) -> tuple:
+    if not u:
+        return ((v, 1),)
+    if not v:
+        return ((u, 1),)
+    out: dict = {}
+    for w, c in _stuffle_cached(u[1:], v):
+        key = (u[0],) + w
+        out[key] = out.get(key, 0) + c
+    for w, c in _stuffle_cached(u, v[1:]):
+        key = (v[0],) + w
+        out[key] = out.get(key, 0) + c
+    for w, c in _stuffle_cached(u[1:], v[1:]):
+        key = (u[0] + v[0],) + w
+        out[key] = out.get(key, 0) + c
+    return tuple(out.items())
+
+
+def stuffle(u: Indices, v: Indices) -> Dict[Indices, int]:
+    """Stuffle (quasi-shuffle) product of two index lists.
+
+    ``ζ(u) ζ(v) = Σ c ζ(w)`` for convergent u, v (Hoffman 1997).
+    """
+    return dict(_stuffle_cached(tuple(u), tuple(v)))
+
+
+# --------------------------------------------------------------------------
+# duality
+# --------------------------------------------------------------------------
+
+def dual_word(word: Word) -> Word:
+    """Duality ``a1...an -> (1-an)...(1-a1)``: ``G(w; 1) = G(dual(w); 1)``.
+
+    For convergent words this is the duality ``ζ(w) = ζ(dual w)`` (the depths
+    of a word and its dual have the sign (-1)^k absorbed consistently because
+    both values are positive; see :func:`dual_indices`).
+    """
+    return tuple(1 - a for a in reversed(word))
+
+
+def dual_indices(indices: Indices) -> Indices:
+    """Dual index list: ``ζ(indices) = ζ(dual_indices(indices))``."""
+    if not is_convergent_indices(indices):
+        raise RegularizationError(f"duality needs a convergent MZV, got ζ{indices}")
+    return word_to_indices(dual_word(indices_to_word(indices)))
+
+
+# --------------------------------------------------------------------------
+# shuffle regularization
+# --------------------------------------------------------------------------
+
+@lru_cache(maxsize=200_000)
+def _regularize_cached(word: Word) -> tuple:
+    """Shuffle-regularized ``G(word; 1)`` as convergent words, G(0;1)=G(1;1)=0."""
+    if is_convergent_word(word):
+        return ((word, Fraction(1)),)
+    out: dict = {}
+    n = len(word)
+    if word[-1] == 0:
+        # word = u 0^m with u empty or ending in 1.
+        m = 0
+        while m < n and word[n - 1 - m] == 0:
+            m += 1
+        if m == n:  # 0^n, n >= 1: log(1)^n / n! = 0
+            return ()
+        u = word[: n - m]
+        tail = (0,) * (m - 1)
+        # 0 ш (u 0^(m-1)) = m u0^m + Σ_{i < len(u)} u[:i] 0 u[i:] 0^(m-1)
+        for i in range(len(u)):
+            other = u[:i] + (0,) + u[i:] + tail
+            for w, c in _regularize_cached(other):
+                out[w] = out.get(w, 0) - Fraction(c) / m
+    else:
+        # word = 1^m u with u empty or starting with 0 (and ending with 1).
+        m = 0
+        while m < n and word[m] == 1:
+            m += 1
+        if m == n:
+            return ()
+        u = word[m:]
+        head = (1,) * (m - 1)
+        # 1 ш (1^(m-1) u) = m 1^m u + Σ_{i ≥ 1} 1^(m-1) u[:i] 1 u[i:]
+        for i in range(1, len(u) + 1):
+            other = head + u[:i] + (1,) + u[i:]
+            for w, c in _regularize_cached(other):
+                out[w] = out.get(w, 0) - Fraction(c) / m
+    return tuple((w, c) for w, c in out.items() if c)
+
+
+def regularize_word(word: Word) -> Dict[Word, Fraction]:
+    """Shuffle-regularized value of ``G(word; 1)`` in convergent words.
+
+    Conventions of METHOD.md §1: ``G(1; 1) := 0`` at the upper end point and
+    the tangential base point at 0 (``G(0^n; x) = log(x)^n/n!``) at the lower
+    one.  The result is a combination of convergent words.
+
+    >>> regularize_word((1, 0))   # G(1,0;1) = -G(0,1;1) = ζ(2)
+    {(0, 1): Fraction(-1, 1)}
+    """
+    word = tuple(word)
+    for a in word:
+        if a not in (0, 1):
+            raise InputError(f"letters of words are 0 and 1, got {a!r}")
+    return dict(_regularize_cached(word))
+
+
+def regularize_indices(indices: Indices, scheme: str = "shuffle") -> Dict[Indices, Fraction]:
+    """Regularized ``ζ(indices)`` (first index may be 1) in convergent index lists.
+
+    ``scheme="shuffle"`` sets ``ζ_ш(1) = 0`` with shuffle products (the
+    convention of iterated integrals, METHOD.md §1); ``scheme="stuffle"`` sets
+    ``ζ_*(1) = 0`` with stuffle products.  The two agree on convergent lists
+    and differ in general (Ihara, Kaneko, Zagier 2006, Theorem 1).
+    """
+    indices = tuple(indices)
+    word = indices_to_word(indices)
+    if scheme == "shuffle":
+        k = len(indices)
+        out: dict = {}
+        for w, c in _regularize_cached(word):
+            idx = word_to_indices(w)
+            # ζ(idx) = (-1)^len(idx) G(w;1), and G(word;1) = (-1)^k ζ(indices)
+            sign = (-1) ** (k + len(idx))
+            out[idx] = out.get(idx, 0) + sign * c
+        return {i: c for i, c in out.items() if c}
+    if scheme == "stuffle":
+        return dict(_stuffle_regularize_cached(indices))
+    raise InputError(f"unknown regularization scheme {scheme!r}", hint="use 'shuffle' or 'stuffle'")
+
+
+@lru_cache(maxsize=100_000)
+def _stuffle_regularize_cached(indices: Indices) -> tuple:
+    if is_convergent_indices(indices):
+        return ((indices, Fraction(1)),)
+    m = 0
+    while m < len(indices) and indices[m] == 1:
+        m += 1
+    if indices == (1,):
+        return ()  # ζ_*(1) = T, regularized to 0
+    rest = indices[m:]
+    head = (1,) * (m - 1)
+    # (1) * (1^(m-1) rest) = m 1^m rest + (terms with fewer leading ones)
+    out: dict = {}
+    for w, c in _stuffle_cached((1,), head + rest):
+        if w == (1,) * m + rest:
+            assert c == m
+            continue
+        for v, d in _stuffle_regularize_cached(w):
+            out[v] = out.get(v, 0) - Fraction(c * d) / m
+    return tuple((w, c) for w, c in out.items() if c)

@@ -1,0 +1,269 @@
+"""Cached MZV reduction tables, one JSON file per weight.
+
+Tables live in ``<cache>/mzv-v<FORMAT>/weight-<N>.json`` where ``<cache>``
+is ``$LOWENERGY_CACHE_DIR`` if set, else the user's cache directory
+(``platformdirs.user_cache_dir("lowenergy")``).  They are built by
+``lowenergy tables build --weight N`` (or :func:`build_tables`) and read
+lazily.  JSON, never pickle: a cache file is data, not code.
+
+File contents (format 1)::
+
+    {"format": 1, "weight": N, "dimension": d_N,
+     "generators": ["3,5"],                 # new generators of weight N
+     "falphabet": {"3,5": [[f2power, [odd letters...], "p/q"], ...]},
+     "reductions": {"5,3": [[["3","5"], "1"], [["2","2","2","2"], "-7/10"]], ...},
+     "stats": {...}}
+
+A reduction lists monomials (generators as comma-joined index lists) with
+exact rational coefficients.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import tempfile
+import time
+from fractions import Fraction
+from pathlib import Path
+from typing import Callable, Dict, List, Tuple
+
+from ..errors import TableError
+from ..words import Indices
+from .reduction import Monomial, WeightTable, reduce_weight
+
+__all__ = [
+    "FORMAT_VERSION",
+    "cache_dir",
+    "TableStore",
+    "default_store",
+    "build_tables",
+    "BUILD_COMMAND",
+]
+
+FORMAT_VERSION = 1
+BUILD_COMMAND = "lowenergy tables build --weight {weight}"
+
+FKey = Tuple[int, Tuple[int, ...]]
+
+
+def cache_dir() -> Path:
+    """Directory holding the tables of the current format version."""
+    root = os.environ.get("LOWENERGY_CACHE_DIR")
+    if not root:
+        import platformdirs
+
+        root = platformdirs.user_cache_dir("lowenergy")
+    return Path(root) / f"mzv-v{FORMAT_VERSION}"
+
+
+def _gen_str(g: Indices) -> str:
+    return ",".join(str(n) for n in g)
+
+
+def _gen_parse(s: str) -> Indices:
+    return tuple(int(n) for n in s.split(","))
+
+
+def _frac_str(q: Fraction) -> str:
+    return f"{q.numerator}/{q.denominator}" if q.denominator != 1 else str(q.numerator)
+
+
+class TableStore:
+    """Lazy reader (and writer) of the per-weight tables in one directory.
+
+    Parameters
+    ----------
+    directory:
+        Where the ``weight-N.json`` files are; default :func:`cache_dir`.
+    """
+
+    def __init__(self, directory: Path | None = None) -> None:
+        self.directory = Path(directory) if directory is not None else cache_dir()
+        self._reductions: Dict[int, Dict[Indices, Dict[Monomial, Fraction]]] = {}
+        self._generators: Dict[int, List[Indices]] = {}
+        self._falphabet: Dict[Indices, Dict[FKey, Fraction]] = {}
+        self._dimension: Dict[int, int] = {}
+        self._stats: Dict[int, dict] = {}
+
+    # -- queries -----------------------------------------------------------
+    def path(self, weight: int) -> Path:
+        return self.directory / f"weight-{weight}.json"
+
+    def built_weight(self) -> int:
+        """Largest W such that all weights 2..W are on disk (1 if none)."""
+        w = 1
+        while (w + 1) in self._reductions or self.path(w + 1).exists():
+            w += 1
+        return w
+
+    def _need(self, weight: int) -> None:
+        if weight in self._reductions:
+            return
+        if weight < 2:
+            return
+        p = self.path(weight)
+        if not p.exists():
+            built = self.built_weight()
+            raise TableError(
+                f"MZV tables are built up to weight {built} only; weight {weight} is needed",
+                hint=f"run `{BUILD_COMMAND.format(weight=weight)}`",
+            )
+        self._load(weight)
+
+    def _load(self, weight: int) -> None:
+        try:
+            data = json.loads(self.path(weight).read_text())
+        except (OSError, ValueError) as exc:
+            raise TableError(
+                f"cannot read MZV table {self.path(weight)}: {exc}",
+                hint=f"rebuild it with `{BUILD_COMMAND.format(weight=weight)}`",
+            ) from None
+        if data.get("format") != FORMAT_VERSION or data.get("weight") != weight:
+            raise TableError(
+                f"MZV table {self.path(weight)} has another format or weight",
+                hint=f"rebuild it with `{BUILD_COMMAND.format(weight=weight)}`",
+            )
+        reds: Dict[Indices, Dict[Monomial, Fraction]] = {}
+        for key, terms in data["reductions"].items():
+            reds[_gen_parse(key)] = {
+                tuple(_gen_parse(g) for g in mono): Fraction(coef) for mono, coef in terms
+            }
+        self._reductions[weight] = reds
+        self._generators[weight] = [_gen_parse(g) for g in data["generators"]]
+        self._dimension[weight] = data["dimension"]
+        self._stats[weight] = data.get("stats", {})
+        for g, terms in data.get("falphabet", {}).items():
+            self._falphabet[_gen_parse(g)] = {
+                (int(p), tuple(int(a) for a in letters)): Fraction(c) for p, letters, c in terms
+            }
+
+    def reduction(self, indices: Indices) -> Dict[Monomial, Fraction]:
+        """Canonical form of a convergent ``ζ(indices)``: ``{monomial: coefficient}``."""
+        weight = sum(indices)
+        if weight == 0:
+            return {(): Fraction(1)}
+        self._need(weight)
+        return self._reductions[weight][tuple(indices)]
+
+    def generators(self, weight: int) -> List[Indices]:
+        self._need(weight)
+        return list(self._generators.get(weight, []))
+
+    def all_generators(self, max_weight: int) -> List[Indices]:
+        out: List[Indices] = []
+        for w in range(2, max_weight + 1):
+            out.extend(self.generators(w))
+        return out
+
+    def dimension(self, weight: int) -> int:
+        if weight == 0:
+            return 1
+        if weight == 1:
+            return 0
+        self._need(weight)
+        return self._dimension[weight]
+
+    def stats(self, weight: int) -> dict:
+        self._need(weight)
+        return dict(self._stats.get(weight, {}))
+
+    def falphabet_of_generator(self, g: Indices) -> Dict[FKey, Fraction]:
+        self._need(sum(g))
+        return self._falphabet[tuple(g)]
+
+    # -- building ----------------------------------------------------------
+    def add(self, table: WeightTable, falphabet: Dict[Indices, Dict[FKey, Fraction]]) -> None:
+        """Store a freshly built weight in memory and on disk (atomically)."""
+        w = table.weight
+        self._reductions[w] = table.reductions
+        self._generators[w] = list(table.generators)
+        self._dimension[w] = table.dimension
+        self._stats[w] = dict(table.stats)
+        self._falphabet.update(falphabet)
+        data = {
+            "format": FORMAT_VERSION,
+            "weight": w,
+            "dimension": table.dimension,
+            "generators": [_gen_str(g) for g in table.generators],
+            "falphabet": {
+                _gen_str(g): [[p, list(letters), _frac_str(c)] for (p, letters), c in sorted(f.items())]
+                for g, f in falphabet.items()
+            },
+            "reductions": {
+                _gen_str(idx): [[[_gen_str(g) for g in mono], _frac_str(c)] for mono, c in sorted(red.items())]
+                for idx, red in table.reductions.items()
+            },
+            "stats": table.stats,
+        }
+        self.directory.mkdir(parents=True, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(dir=self.directory, suffix=".tmp")
+        with os.fdopen(fd, "w") as fh:
+            json.dump(data, fh, separators=(",", ":"))
+        os.replace(tmp, self.path(w))
+
+    def forget(self) -> None:
+        """Drop everything held in memory (files stay)."""
+        self.__init__(self.directory)
+
+
+_STORES: Dict[Path, TableStore] = {}
+
+
+def default_store() -> TableStore:
+    """The store of :func:`cache_dir`, shared within the process."""
+    d = cache_dir()
+    if d not in _STORES:
+        _STORES[d] = TableStore(d)
+    return _STORES[d]
+
+
+def build_tables(
+    max_weight: int,
+    store: TableStore | None = None,
+    *,
+    rebuild: bool = False,
+    progress: Callable[[int, str], None] | None = None,
+) -> TableStore:
+    """Build (or complete) the tables up to ``max_weight``.
+
+    Parameters
+    ----------
+    max_weight:
+        Highest weight to build.
+    store:
+        Target store (default :func:`default_store`).
+    rebuild:
+        Recompute weights that are already on disk.
+    progress:
+        Callback ``progress(weight, message)``.
+    """
+    from .falphabet import generator_falphabet
+
+    store = store or default_store()
+    if rebuild:
+        for w in range(2, max_weight + 1):
+            if store.path(w).exists():
+                store.path(w).unlink()
+        store.forget()
+    gens: List[Indices] = []
+    for w in range(2, max_weight + 1):
+        if not rebuild and store.path(w).exists():
+            gens.extend(store.generators(w))
+            if progress:
+                progress(w, "cached")
+            continue
+        t0 = time.perf_counter()
+        table = reduce_weight(w, gens, progress=(lambda msg, w=w: progress(w, msg)) if progress else None)
+        # Make the new weight visible before computing the f-alphabet images,
+        # which need the reductions of the words of weight w itself.
+        store._reductions[w] = table.reductions
+        store._generators[w] = list(table.generators)
+        store._dimension[w] = table.dimension
+        fa = {g: generator_falphabet(g, store) for g in table.generators}
+        table.stats["total_s"] = time.perf_counter() - t0
+        store.add(table, fa)
+        gens.extend(table.generators)
+        if progress:
+            progress(w, "done")
+    return store

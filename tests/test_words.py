@@ -1,0 +1,148 @@
+"""Words, shuffle and stuffle products, duality and regularization."""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from math import comb
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from lowenergy.errors import InputError
+from lowenergy.words import (
+    add_into,
+    admissible_indices,
+    dual_indices,
+    dual_word,
+    indices_to_word,
+    regularize_indices,
+    regularize_word,
+    shuffle,
+    shuffle_many,
+    stuffle,
+    word_to_indices,
+)
+
+words = st.lists(st.integers(0, 1), max_size=6).map(tuple)
+index_lists = st.lists(st.integers(1, 4), max_size=4).map(tuple)
+
+
+def combine(*pairs):
+    out = {}
+    for factor, comb_ in pairs:
+        add_into(out, comb_, factor)
+    return out
+
+
+def product3(prod, a, b, c, left=True):
+    out = {}
+    first = prod(a, b) if left else prod(b, c)
+    for w, m in first.items():
+        add_into(out, prod(w, c) if left else prod(a, w), m)
+    return out
+
+
+@settings(max_examples=200, deadline=None)
+@given(words, words)
+def test_shuffle_commutative(u, v):
+    assert shuffle(u, v) == shuffle(v, u)
+
+
+@settings(max_examples=150, deadline=None)
+@given(words, words, words)
+def test_shuffle_associative(u, v, w):
+    assert product3(shuffle, u, v, w, True) == product3(shuffle, u, v, w, False)
+
+
+@settings(max_examples=200, deadline=None)
+@given(index_lists, index_lists)
+def test_stuffle_commutative(u, v):
+    assert stuffle(u, v) == stuffle(v, u)
+
+
+@settings(max_examples=150, deadline=None)
+@given(index_lists, index_lists, index_lists)
+def test_stuffle_associative(u, v, w):
+    assert product3(stuffle, u, v, w, True) == product3(stuffle, u, v, w, False)
+
+
+@given(words, words)
+@settings(max_examples=100, deadline=None)
+def test_shuffle_counts(u, v):
+    # |u ш v| counted with multiplicity is the binomial coefficient.
+    assert sum(shuffle(u, v).values()) == comb(len(u) + len(v), len(u))
+
+
+def test_shuffle_and_stuffle_small_cases():
+    # By hand: 01 ш 1 = 011 + 011 + 101 ; ζ(2)*ζ(2) = 2 ζ(2,2) + ζ(4).
+    assert shuffle((0, 1), (1,)) == {(0, 1, 1): 2, (1, 0, 1): 1}
+    assert stuffle((2,), (2,)) == {(2, 2): 2, (4,): 1}
+    assert shuffle_many((0,), (0,), (0,)) == {(0, 0, 0): 6}
+
+
+@pytest.mark.parametrize("indices", [(2,), (2, 1), (3, 1, 2), (5, 3), (2, 2, 2)])
+def test_index_word_round_trip(indices):
+    assert word_to_indices(indices_to_word(indices)) == indices
+
+
+def test_bad_indices():
+    with pytest.raises(InputError):
+        indices_to_word((0, 2))
+    with pytest.raises(InputError):
+        word_to_indices((0, 2, 1))
+
+
+def test_admissible_count():
+    # 2^(w-2) convergent index lists of weight w (compositions with first part ≥ 2).
+    for w in range(2, 12):
+        assert len(admissible_indices(w)) == 2 ** (w - 2)
+
+
+def test_duality_small():
+    # ζ(2,1) = ζ(3) and ζ(3,1) = ζ(4)'s dual partner ζ(2,2)? No: ζ(3,1) is self-dual
+    # (Zagier's duality: word 0011 -> reverse+flip = 0011).
+    assert dual_indices((2, 1)) == (3,)
+    assert dual_indices((3, 1)) == (3, 1)
+    assert dual_indices((2, 1, 1)) == (4,)
+    for w in range(2, 9):
+        for idx in admissible_indices(w):
+            assert dual_indices(dual_indices(idx)) == idx
+            assert dual_word(dual_word(indices_to_word(idx))) == indices_to_word(idx)
+
+
+def test_regularization_by_hand():
+    # G(1,0;1) = -G(0,1;1) (by hand from 0 ш 1 = 01 + 10 and G(0;1) = 0)
+    assert regularize_word((1, 0)) == {(0, 1): Fraction(-1)}
+    # words of only one letter regularize to 0
+    assert regularize_word((0, 0, 0)) == {}
+    assert regularize_word((1, 1)) == {}
+    # ζ_ш(1,2) = -2 ζ(2,1) (from 1 ш 01 = 101 + 011 + 011)
+    assert regularize_indices((1, 2)) == {(2, 1): Fraction(-2)}
+    # stuffle: ζ_*(1)ζ(2) = ζ_*(1,2) + ζ(2,1) + ζ(3)
+    assert regularize_indices((1, 2), "stuffle") == {(2, 1): Fraction(-1), (3,): Fraction(-1)}
+    # ζ_*(1,1) = (T^2 - ζ(2))/2 at T = 0 (Ihara-Kaneko-Zagier 2006, §2)
+    assert regularize_indices((1, 1), "stuffle") == {(2,): Fraction(-1, 2)}
+    assert regularize_indices((1, 1), "shuffle") == {}
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(st.integers(0, 1), min_size=1, max_size=7).map(tuple))
+def test_regularized_words_are_convergent(word):
+    for w in regularize_word(word):
+        assert w[0] == 0 and w[-1] == 1
+
+
+@settings(max_examples=100, deadline=None)
+@given(words, words)
+def test_regularization_is_a_shuffle_homomorphism(u, v):
+    # reg(u ш v) = reg(u) ш reg(v) projected back: both sides regularized.
+    lhs = {}
+    for w, m in shuffle(u, v).items():
+        add_into(lhs, regularize_word(w), m)
+    rhs = {}
+    for a, ca in regularize_word(u).items():
+        for b, cb in regularize_word(v).items():
+            for w, m in shuffle(a, b).items():
+                add_into(rhs, regularize_word(w), ca * cb * m)
+    assert lhs == rhs
