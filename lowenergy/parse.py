@@ -761,9 +761,8 @@ class _Parser:
 
     # -- token access ------------------------------------------------------
 
-    def peek(self, ahead: int = 0) -> _Token:
-        index = min(self.pos + ahead, len(self.tokens) - 1)
-        token = self.tokens[index]
+    def peek(self) -> _Token:
+        token = self.tokens[min(self.pos, len(self.tokens) - 1)]
         if token.kind == "error":
             assert token.error is not None
             raise token.error

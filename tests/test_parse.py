@@ -29,6 +29,7 @@ from lowenergy.parse import (
     to_text,
     walk,
 )
+from lowenergy.parse import _children  # internal, only to measure tree depth
 
 # short constructors for the expected trees
 N = Num
@@ -245,6 +246,10 @@ INVALID = [
     (".5", 1, "malformed number '.5'", "write 0.5"),
     ("1.", 1, "malformed number '1.'", "write 1 or 1.0"),
     ("1.2.3", 1, "malformed number '1.2.3'", None),
+    ("1..2", 1, "malformed number '1..2'", "at most one '.'"),
+    ("(1+)", 4, "expected an expression after '+', found ')'", "operand is missing"),
+    ("f(a,;x)", 5, "expected an expression after ','", "letter is missing"),
+    ("G(0,1;x", 8, "'(' at column 2 is never closed", None),
     ("x.y", 2, "unexpected '.'", None),
     ("x^", 3, "expected an expression after '^'", None),
     ("*2", 1, "expected an expression, found '*'", "operand on its left"),
@@ -480,14 +485,8 @@ def _tree_depth(node):
     while stack:
         current, level = stack.pop()
         deepest = max(deepest, level)
-        stack.extend((kid, level + 1) for kid in walk(current) if kid is not current and _is_child(current, kid))
+        stack.extend((kid, level + 1) for kid in _children(current))
     return deepest
-
-
-def _is_child(parent, kid):
-    from lowenergy.parse import _children
-
-    return any(kid is c for c in _children(parent))
 
 
 @settings(max_examples=1000, deadline=None)

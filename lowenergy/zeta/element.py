@@ -16,8 +16,8 @@ Examples
 True
 >>> z(2) ** 2 == Fraction(5, 2) * z(4)
 True
->>> print(z(5, 3))
--5*zeta(3)*zeta(5) + 5*zeta(3,5) + 6/5*zeta(2)^4
+>>> print(z(5, 3))                         # ζ(3)ζ(5) = ζ(3,5) + ζ(5,3) + ζ(8)
+-zeta(3,5) + zeta(3)*zeta(5) - 24/175*zeta(2)^4
 >>> z(5, 3).weight
 8
 """
@@ -241,7 +241,10 @@ class MZV:
                 for g in mono:
                     term *= values[g]
                 total += term
-        return +total
+            # round to the requested precision inside the local context (a bare
+            # ``+total`` outside it would round to mpmath's global precision)
+            total = mpmath.mpf(total)
+        return total
 
     def f_alphabet(self, store: TableStore | None = None) -> Dict:
         """Image in the f-alphabet, ``{(f2_power, odd_letters): coefficient}``."""

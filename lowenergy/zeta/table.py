@@ -105,8 +105,9 @@ class TableStore:
         p = self.path(weight)
         if not p.exists():
             built = self.built_weight()
+            have = f"are built up to weight {built} only" if built >= 2 else "are not built yet"
             raise TableError(
-                f"MZV tables are built up to weight {built} only; weight {weight} is needed",
+                f"MZV tables {have} (in {self.directory}); weight {weight} is needed",
                 hint=f"run `{BUILD_COMMAND.format(weight=weight)}`",
             )
         self._load(weight)

@@ -1,0 +1,229 @@
+"""Turn a parsed plain-text expression into an exact :class:`MZV`.
+
+Syntax (see :mod:`lowenergy.parse` for the grammar): rationals and decimals,
+``zeta(n1, ..., nk)`` (first index on the largest summation variable),
+``G(a1, ..., an; 1)`` (shuffle-regularized value at 1, letters 0 and 1),
+``pi``, ``+ - * / ^`` and parentheses.  ``pi`` may only appear in even total
+powers in each term (``π^2 = 6 ζ(2)``); division is by rationals only;
+exponents are non-negative integers (negative ones only for rationals).
+
+Nothing is evaluated as Python code: the tree from the hand-written parser
+is walked here node by node, without recursion.
+
+>>> print(evaluate("zeta(2,1) - zeta(3)"))
+0
+>>> print(evaluate("pi^4/90"))          # ζ(4) = π^4/90 (Euler)
+2/5*zeta(2)^2
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Dict
+
+from ..errors import InputError, LowEnergyError, RegularizationError
+from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression
+from .element import MZV, g_value, zeta
+from .table import TableStore
+
+__all__ = ["evaluate", "evaluate_tree", "MAX_EXPONENT"]
+
+MAX_EXPONENT = 64
+
+# An intermediate value: {power of pi: MZV}
+PiValue = Dict[int, MZV]
+
+
+def _add(a: PiValue, b: PiValue, sign: int = 1) -> PiValue:
+    out = dict(a)
+    for p, x in b.items():
+        out[p] = out.get(p, MZV()) + (x if sign == 1 else -x)
+        if not out[p]:
+            del out[p]
+    return out
+
+
+MAX_TERMS = 200_000
+
+
+def _mul(a: PiValue, b: PiValue) -> PiValue:
+    size = sum(len(x.as_dict()) for x in a.values()) * sum(len(x.as_dict()) for x in b.values())
+    if size > MAX_TERMS:
+        raise InputError(f"the expanded product would have more than {MAX_TERMS} terms")
+    out: PiValue = {}
+    for pa, xa in a.items():
+        for pb, xb in b.items():
+            y = out.get(pa + pb, MZV()) + xa * xb
+            if y:
+                out[pa + pb] = y
+            else:
+                out.pop(pa + pb, None)
+    return out
+
+
+def _rational_of(v: PiValue) -> Fraction | None:
+    if not v:
+        return Fraction(0)
+    if set(v) != {0} or not v[0].is_rational():
+        return None
+    return v[0].rational_value()
+
+
+def evaluate(
+    text: str,
+    *,
+    regularize: str | None = None,
+    store: TableStore | None = None,
+    source: str | None = None,
+    line: int | None = None,
+) -> MZV:
+    """Parse and evaluate ``text`` to a canonical :class:`MZV`.
+
+    Parameters
+    ----------
+    text:
+        The expression.
+    regularize:
+        ``None`` refuses divergent ``zeta(1, ...)``; ``"shuffle"`` or
+        ``"stuffle"`` regularizes them.
+    store:
+        Table store (default: the user's cache).
+    source, line:
+        Where the text came from, for error messages.
+    """
+    tree = parse_expression(text, source=source or "<expression>", line=line)
+    try:
+        return evaluate_tree(tree, regularize=regularize, store=store)
+    except LowEnergyError as err:
+        raise err.located(source=source or "<expression>", line=line)
+
+
+def _fail(node: Node, message: str, hint: str | None = None, cls=InputError):
+    from ..parse import to_text
+
+    term = None
+    try:
+        term = to_text(node)
+    except Exception:  # pragma: no cover - to_text handles every node
+        term = None
+    return cls(message, column=getattr(node, "col", None), term=term, hint=hint)
+
+
+def _zeta_call(node: Call, regularize, store) -> PiValue:
+    if node.letters is not None:
+        raise _fail(node, "zeta takes indices only, without ';'", "write zeta(3,5)")
+    if not node.args:
+        raise _fail(node, "zeta needs at least one index", "write zeta(3)")
+    indices = []
+    for a in node.args:
+        if not isinstance(a, Num) or a.value.denominator != 1 or a.value < 1:
+            raise _fail(a, "MZV indices must be positive integers", "write zeta(3,5)")
+        indices.append(int(a.value))
+    if indices[0] == 1 and regularize is None:
+        raise _fail(
+            node,
+            "zeta with first index 1 diverges",
+            "ask for a regularization (--regularize shuffle or stuffle)",
+            RegularizationError,
+        )
+    try:
+        return {0: zeta(*indices, regularize=regularize, store=store)}
+    except LowEnergyError as err:
+        raise err.located(column=node.col)
+
+
+def _g_call(node: Call, store) -> PiValue:
+    if node.letters is None or len(node.args) != 1:
+        raise _fail(node, "G needs letters and the argument 1", "write G(0,1,1; 1)")
+    arg = node.args[0]
+    if not (isinstance(arg, Num) and arg.value == 1):
+        raise _fail(arg, "only G(...; 1) is a number here", "write G(0,1; 1)")
+    letters = []
+    for a in node.letters:
+        if not isinstance(a, Num) or a.value not in (0, 1):
+            raise _fail(a, "letters of G must be 0 or 1")
+        letters.append(int(a.value))
+    try:
+        return {0: g_value(tuple(letters), store=store)}
+    except LowEnergyError as err:
+        raise err.located(column=node.col)
+
+
+def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStore | None = None) -> MZV:
+    """Evaluate a parsed tree (iteratively; see :func:`evaluate`)."""
+    values: Dict[int, list] = {}
+    stack = [(tree, False)]
+    while stack:
+        node, ready = stack.pop()
+        if isinstance(node, Num):
+            values.setdefault(id(node), []).append({0: MZV.rational(node.value)} if node.value else {})
+            continue
+        if isinstance(node, Sym):
+            if node.name == "pi":
+                values.setdefault(id(node), []).append({1: MZV.one()})
+                continue
+            raise _fail(node, f"unknown name {node.name!r}", "numbers here use zeta(...), G(...; 1) and pi")
+        if isinstance(node, Call):
+            if node.name == "zeta":
+                values.setdefault(id(node), []).append(_zeta_call(node, regularize, store))
+            elif node.name == "G":
+                values.setdefault(id(node), []).append(_g_call(node, store))
+            else:
+                raise _fail(node, f"unknown function {node.name!r}", "known here: zeta(...), G(...; 1)")
+            continue
+        children = (node.operand,) if isinstance(node, Neg) else (
+            (node.base, node.exponent) if isinstance(node, Pow) else (node.left, node.right)
+        )
+        if not ready:
+            stack.append((node, True))
+            for c in children:
+                stack.append((c, False))
+            continue
+        vals = [values[id(c)].pop() for c in children]
+        if isinstance(node, Neg):
+            res = {p: -x for p, x in vals[0].items()}
+        elif isinstance(node, Add):
+            res = _add(vals[0], vals[1])
+        elif isinstance(node, Sub):
+            res = _add(vals[0], vals[1], -1)
+        elif isinstance(node, Mul):
+            res = _mul(vals[0], vals[1])
+        elif isinstance(node, Div):
+            q = _rational_of(vals[1])
+            if q is None:
+                raise _fail(node.right, "division by a non-rational quantity", "divide by rational numbers only")
+            if q == 0:
+                raise _fail(node.right, "division by zero")
+            res = {p: x / q for p, x in vals[0].items()}
+        elif isinstance(node, Pow):
+            e = _rational_of(vals[1])
+            if e is None or e.denominator != 1:
+                raise _fail(node.exponent, "exponents must be integers", "write e.g. zeta(3)^2")
+            n = int(e)
+            if abs(n) > MAX_EXPONENT:
+                raise _fail(node.exponent, f"exponent larger than {MAX_EXPONENT}")
+            if n < 0:
+                q = _rational_of(vals[0])
+                if q is None:
+                    raise _fail(node, "negative powers are allowed for rational numbers only")
+                if q == 0:
+                    raise _fail(node, "division by zero")
+                res = {0: MZV.rational(q ** n)}
+            else:
+                res = {0: MZV.one()}
+                for _ in range(n):
+                    res = _mul(res, vals[0])
+        else:  # pragma: no cover - the parser has no other node types
+            raise _fail(node, f"unsupported syntax {type(node).__name__}")
+        values.setdefault(id(node), []).append(res)
+    final = values[id(tree)].pop()
+    total = MZV()
+    for p, x in final.items():
+        if p % 2:
+            raise InputError(
+                "odd power of pi: the result is not a combination of MZVs",
+                column=tree.col,
+                hint="only even powers of pi are MZVs (pi^2 = 6*zeta(2))",
+            )
+        total = total + x * (MZV.rational(6) * zeta(2, store=store)) ** (p // 2) if p else total + x
+    return total
