@@ -1,0 +1,1 @@
+"""The low-energy expansion engine and its result type."""

@@ -1,0 +1,1 @@
+"""Integrands: the safe reader of integrand files and the term model."""

@@ -1,0 +1,130 @@
+"""The data model of a worldsheet integrand, shared by reader, engine and checks.
+
+An integrand is ``Σ_terms  P(s, t, params) · x^(A) (1-x)^(B) · G(w; x)`` with
+
+* ``P`` a polynomial in the two expansion variables and the free rational
+  parameters whose coefficients are exact :class:`~lowenergy.zeta.element.MZV`
+  elements (see :class:`Poly`);
+* ``A = shift + coeff · var`` and ``B`` likewise (:class:`LinearExponent`):
+  an integer plus a rational multiple of one expansion variable (or none);
+* ``w`` one word over {0, 1} (products of G-words, logs and polylogs are
+  shuffled into single words by the reader).
+
+Everything is exact.  Variables are referred to by position: index 0 is the
+first expansion variable (default name ``s``), index 1 the second (``t``),
+indices 2, 3, ... the free parameters in the order of the file.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from fractions import Fraction
+from typing import Dict, Optional, Tuple
+
+from ..zeta.element import MZV
+
+__all__ = ["Poly", "LinearExponent", "Term", "Integrand", "poly_add", "poly_mul", "poly_scale"]
+
+# A polynomial: {exponent tuple (one entry per variable: s, t, params...): MZV}
+Poly = Dict[Tuple[int, ...], MZV]
+
+
+def poly_add(a: Poly, b: Poly, factor: int | Fraction = 1) -> Poly:
+    """``a + factor * b`` (new dict; zero coefficients dropped)."""
+    out = dict(a)
+    for k, v in b.items():
+        y = out.get(k, MZV()) + v * factor
+        if y:
+            out[k] = y
+        else:
+            out.pop(k, None)
+    return out
+
+
+def poly_mul(a: Poly, b: Poly) -> Poly:
+    out: Poly = {}
+    for ka, va in a.items():
+        for kb, vb in b.items():
+            k = tuple(x + y for x, y in zip(ka, kb))
+            y = out.get(k, MZV()) + va * vb
+            if y:
+                out[k] = y
+            else:
+                out.pop(k, None)
+    return out
+
+
+def poly_scale(a: Poly, c: MZV | int | Fraction) -> Poly:
+    out: Poly = {}
+    for k, v in a.items():
+        y = v * c
+        if y:
+            out[k] = y
+    return out
+
+
+@dataclass(frozen=True)
+class LinearExponent:
+    """``shift + coeff * variable``; ``var`` is 0 (s), 1 (t) or None."""
+
+    shift: int
+    coeff: Fraction = Fraction(0)
+    var: Optional[int] = None
+
+    def __post_init__(self) -> None:
+        if (self.var is None) != (self.coeff == 0):
+            raise ValueError("LinearExponent: give both coeff != 0 and var, or neither")
+
+
+@dataclass(frozen=True)
+class Term:
+    """One term ``coefficient · x^x_exp (1-x)^y_exp · G(word; x)``.
+
+    ``source_line`` and ``text`` locate the piece of the input it came from
+    (for error messages), when known.
+    """
+
+    coefficient: Poly
+    x_exp: LinearExponent
+    y_exp: LinearExponent
+    word: Tuple[int, ...] = ()
+    source_line: Optional[int] = None
+    text: Optional[str] = None
+
+
+@dataclass
+class Integrand:
+    """A whole integrand file after reading.
+
+    Attributes
+    ----------
+    terms:
+        The terms (their sum is the integrand).
+    variables:
+        The user's names of the two expansion variables, e.g. ("s", "t").
+    parameters:
+        Names of the free rational parameters (variables 2, 3, ...).
+    integration_variable:
+        The user's name of x.
+    title, notes, provenance:
+        Free text from the file.
+    source:
+        The file name, for messages.
+    expression:
+        The integrand text as written.
+    """
+
+    terms: list
+    variables: Tuple[str, str] = ("s", "t")
+    parameters: Tuple[str, ...] = ()
+    integration_variable: str = "x"
+    title: str = ""
+    notes: str = ""
+    provenance: str = ""
+    source: str = "<integrand>"
+    expression: str = ""
+    extra: dict = field(default_factory=dict)
+
+    @property
+    def nvars(self) -> int:
+        return 2 + len(self.parameters)
