@@ -42,6 +42,7 @@ __all__ = [
 ]
 
 FORMAT_VERSION = 1
+DOUBLE_SHUFFLE_MAX = 12
 BUILD_COMMAND = "lowenergy tables build --weight {weight}"
 
 FKey = Tuple[int, Tuple[int, ...]]
@@ -225,6 +226,8 @@ def build_tables(
     *,
     rebuild: bool = False,
     progress: Callable[[int, str], None] | None = None,
+    method: str = "auto",
+    shuffle_max_weight: int = DOUBLE_SHUFFLE_MAX,
 ) -> TableStore:
     """Build (or complete) the tables up to ``max_weight``.
 
@@ -238,7 +241,14 @@ def build_tables(
         Recompute weights that are already on disk.
     progress:
         Callback ``progress(weight, message)``.
+    method:
+        ``"double-shuffle"`` (exact linear algebra on relations),
+        ``"motivic"`` (coaction plus one numerically fixed rational per word,
+        :mod:`lowenergy.zeta.motivic`; needs the lower weights built) or
+        ``"auto"``: double shuffle up to ``shuffle_max_weight``, motivic above.
     """
+    if method not in ("auto", "double-shuffle", "motivic"):
+        raise TableError(f"unknown table method {method!r}", hint="use auto, double-shuffle or motivic")
     from .falphabet import generator_falphabet
 
     store = store or default_store()
@@ -255,7 +265,14 @@ def build_tables(
                 progress(w, "cached")
             continue
         t0 = time.perf_counter()
-        table = reduce_weight(w, gens, progress=(lambda msg, w=w: progress(w, msg)) if progress else None)
+        say = (lambda msg, w=w: progress(w, msg)) if progress else None
+        use_motivic = method == "motivic" or (method == "auto" and w > shuffle_max_weight)
+        if use_motivic and w >= 3:
+            from .motivic import reduce_weight_motivic
+
+            table = reduce_weight_motivic(w, gens, store, progress=say)
+        else:
+            table = reduce_weight(w, gens, progress=say)
         # Make the new weight visible before computing the f-alphabet images,
         # which need the reductions of the words of weight w itself.
         store._reductions[w] = table.reductions
