@@ -133,10 +133,98 @@ class WordValues:
 _CACHE: Dict[Tuple[str, int], WordValues] = {}
 
 
-def word_values(weight: int, store: TableStore | None = None) -> WordValues:
-    """The (process-cached) values of all words of a weight."""
+def word_values(weight: int, store: TableStore | None = None, exact: bool | None = None):
+    """The (process-cached) values of all words of a weight.
+
+    Exact Fraction rows up to :data:`EXACT_MAX_WEIGHT`, modular rows above
+    (``exact`` forces one or the other).
+    """
     store = store or default_store()
-    key = (str(store.directory), weight)
+    if exact is None:
+        exact = weight <= EXACT_MAX_WEIGHT
+    key = (str(store.directory), weight, exact)
     if key not in _CACHE:
-        _CACHE[key] = WordValues(weight, store)
+        _CACHE[key] = WordValues(weight, store) if exact else ModularWordValues(weight, store)
     return _CACHE[key]
+
+
+# ---------------------------------------------------------------------------
+# high weights: the same rows modulo 26-bit primes
+# ---------------------------------------------------------------------------
+
+EXACT_MAX_WEIGHT = 12
+
+
+class ModularWordValues:
+    """Values of all words of one weight modulo several primes (numpy int64).
+
+    Used above :data:`EXACT_MAX_WEIGHT`, where exact Fraction rows would be
+    slow to build.  :meth:`combine` forms the integer combination modulo each
+    prime and recovers the exact rational coordinates by Chinese remaindering
+    and rational reconstruction, adding primes until the result is stable
+    (it must be confirmed by one further prime; at most all eight primes of
+    :data:`lowenergy.zeta.motivic.SMALL_PRIMES`, else an error).
+    """
+
+    def __init__(self, weight: int, store: TableStore) -> None:
+        from ..zeta.motivic import _PrimeData
+
+        self.weight = weight
+        self.store = store
+        self._data = {}
+        self._factory = _PrimeData
+        gens = store.all_generators(weight) if weight >= 2 else []
+        self.basis: List[Monomial] = monomials_of_weight(gens, weight) if weight else [()]
+
+    def _rows(self, p: int):
+        if p not in self._data:
+            self._data[p] = self._factory(p, self.store).word_values(self.weight)
+        return self._data[p]
+
+    def combine(self, coeffs: Dict[int, int]) -> MZV:
+        import numpy as np
+
+        from ..errors import LowEnergyError
+        from ..zeta.motivic import SMALL_PRIMES
+        from ..zeta.reduction import _rational_reconstruct
+
+        if not coeffs:
+            return MZV()
+        rows = np.fromiter(coeffs.keys(), dtype=np.int64, count=len(coeffs))
+        mults = list(coeffs.values())
+        residues = []
+        previous = None
+        for count, p in enumerate(SMALL_PRIMES, start=1):
+            vals = self._rows(p)[rows]
+            m = np.array([c % p for c in mults], dtype=np.int64)
+            acc = np.zeros(vals.shape[1], dtype=np.int64)
+            for start in range(0, len(m), 1024):  # keep partial sums below 2^63
+                acc = (acc + m[start : start + 1024] @ vals[start : start + 1024]) % p
+            residues.append((p, [int(v) for v in acc]))
+            if count < 2:
+                continue
+            modulus = 1
+            for q, _ in residues:
+                modulus *= q
+            coords = []
+            ok = True
+            for k in range(len(self.basis)):
+                r, mod = 0, 1
+                for q, vec in residues:
+                    t = ((vec[k] - r) * pow(mod, -1, q)) % q
+                    r += mod * t
+                    mod *= q
+                if r == 0:
+                    coords.append(Fraction(0))
+                    continue
+                frac = _rational_reconstruct(r, modulus)
+                if frac is None:
+                    ok = False
+                    break
+                coords.append(frac)
+            if ok and previous == coords:
+                return MZV({mono: c for mono, c in zip(self.basis, coords) if c})
+            previous = coords if ok else None
+        raise LowEnergyError(
+            f"exact reconstruction of a weight-{self.weight} coefficient failed with {len(SMALL_PRIMES)} primes"
+        )
