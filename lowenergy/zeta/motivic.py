@@ -102,49 +102,58 @@ class _PrimeData:
             out[0, 0] = 1
             self.values[k] = out
             return out
-        inv = {m: pow(m, -1, p) for m in range(1, k + 1)}
-
-        def letters(i: int) -> Tuple[int, ...]:
-            return tuple((i >> (k - 1 - j)) & 1 for j in range(k))
-
-        def index(w: Tuple[int, ...]) -> int:
-            r = 0
-            for a in w:
-                r = (r << 1) | a
-            return r
-
-        keyed = []
-        for i in range(n):
-            w = letters(i)
-            tz = 0
-            while tz < k and w[k - 1 - tz] == 0:
-                tz += 1
-            lo = 0
-            while lo < k and w[lo] == 1:
-                lo += 1
-            keyed.append((tz, lo, i, w))
-        keyed.sort()
-        for tz, lo, i, w in keyed:
-            if tz == k or lo == k:
-                continue  # 0^k and 1^k regularize to 0
-            if tz == 0 and lo == 0:
-                idx = word_to_indices(w)
-                sign = -1 if len(idx) % 2 else 1
-                for mono, c in self.store.reduction(idx).items():
-                    out[i, col[mono]] = (sign * _mod(c, p)) % p
+        # Regularization recursion, vectorized over classes of words with the
+        # same number tz of trailing zeros and lo of leading ones (see
+        # lowenergy.words.regularize_word): every dependency lies in a class
+        # processed earlier (tz - 1, or tz = 0 and lo - 1).
+        idx = np.arange(n, dtype=np.int64)
+        tz = np.zeros(n, dtype=np.int64)
+        lo = np.zeros(n, dtype=np.int64)
+        for b in range(k):  # trailing zeros: lowest bits
+            still = (tz == b) & (((idx >> b) & 1) == 0)
+            tz[still] = b + 1
+        for b in range(k):  # leading ones: highest bits
+            still = (lo == b) & (((idx >> (k - 1 - b)) & 1) == 1)
+            lo[still] = b + 1
+        conv = np.nonzero((tz == 0) & (lo == 0))[0]
+        for i in conv.tolist():
+            w = tuple((i >> (k - 1 - j)) & 1 for j in range(k))
+            ind = word_to_indices(w)
+            sign = -1 if len(ind) % 2 else 1
+            for mono, c in self.store.reduction(ind).items():
+                out[i, col[mono]] = (sign * _mod(c, p)) % p
+        # words starting with 1 and ending with 1: by lo ascending
+        for m in range(1, k):
+            sel = np.nonzero((tz == 0) & (lo == m))[0]
+            if len(sel) == 0:
                 continue
-            acc = np.zeros(d, dtype=np.int64)
-            if tz:
-                u, tail = w[: k - tz], (0,) * (tz - 1)
-                for j in range(len(u)):
-                    acc += out[index(u[:j] + (0,) + u[j:] + tail)]
-                m = tz
-            else:
-                u, head = w[lo:], (1,) * (lo - 1)
-                for j in range(1, len(u) + 1):
-                    acc += out[index(head + u[:j] + (1,) + u[j:])]
-                m = lo
-            out[i] = (-(acc % p) * inv[m]) % p
+            length_u = k - m
+            u = sel & ((1 << length_u) - 1)
+            acc = np.zeros((len(sel), d), dtype=np.int64)
+            for j in range(1, length_u + 1):
+                # head(1^(m-1)) + u[:j] + 1 + u[j:]
+                top_u = u >> (length_u - j)
+                low_u = u & ((1 << (length_u - j)) - 1)
+                new_u = (((top_u << 1) | 1) << (length_u - j)) | low_u
+                new = (((1 << (m - 1)) - 1) << (length_u + 1)) | new_u
+                acc = (acc + out[new]) % p
+            out[sel] = (-acc * pow(m, -1, p)) % p
+        # words ending with 0: by tz ascending
+        for m in range(1, k):
+            sel = np.nonzero(tz == m)[0]
+            if len(sel) == 0:
+                continue
+            length_u = k - m
+            u = sel >> m
+            acc = np.zeros((len(sel), d), dtype=np.int64)
+            for j in range(length_u):
+                # u[:j] + 0 + u[j:] + 0^(m-1)
+                top_u = u >> (length_u - j)
+                low_u = u & ((1 << (length_u - j)) - 1)
+                new_u = (top_u << (length_u - j + 1)) | low_u
+                new = new_u << (m - 1)
+                acc = (acc + out[new]) % p
+            out[sel] = (-acc * pow(m, -1, p)) % p
         self.values[k] = out
         return out
 
