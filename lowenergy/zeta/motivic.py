@@ -120,8 +120,8 @@ class _PrimeData:
             w = tuple((i >> (k - 1 - j)) & 1 for j in range(k))
             ind = word_to_indices(w)
             sign = -1 if len(ind) % 2 else 1
-            for mono, c in self.store.reduction(ind).items():
-                out[i, col[mono]] = (sign * _mod(c, p)) % p
+            for mono, num, den in self.store.reduction_raw(ind):
+                out[i, col[mono]] = (sign * (num % p) * pow(den % p, -1, p)) % p
         # words starting with 1 and ending with 1: by lo ascending
         for m in range(1, k):
             sel = np.nonzero((tz == 0) & (lo == m))[0]

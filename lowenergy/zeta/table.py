@@ -6,16 +6,19 @@ is ``$LOWENERGY_CACHE_DIR`` if set, else the user's cache directory
 ``lowenergy tables build --weight N`` (or :func:`build_tables`) and read
 lazily.  JSON, never pickle: a cache file is data, not code.
 
-File contents (format 1)::
+File contents (format 2)::
 
-    {"format": 1, "weight": N, "dimension": d_N,
+    {"format": 2, "weight": N, "dimension": d_N,
      "generators": ["3,5"],                 # new generators of weight N
      "falphabet": {"3,5": [[f2power, [odd letters...], "p/q"], ...]},
-     "reductions": {"5,3": [[["3","5"], "1"], [["2","2","2","2"], "-7/10"]], ...},
+     "basis": [["2","2","2","2"], ["3","5"], ["3,5"]],   # monomials of weight N
+     "reductions": {"5,3": [[2, -1, 1], [1, 1, 1], [0, -24, 175]], ...},
      "stats": {...}}
 
-A reduction lists monomials (generators as comma-joined index lists) with
-exact rational coefficients.
+A reduction lists ``[position in basis, numerator, denominator]``; generators
+are written as comma-joined index lists.  Reductions are turned into
+``{monomial: Fraction}`` only when asked for (the files of weight 16-17 hold
+millions of coefficients).
 """
 
 from __future__ import annotations
@@ -26,6 +29,7 @@ import tempfile
 import time
 from fractions import Fraction
 from pathlib import Path
+from collections.abc import Mapping
 from typing import Callable, Dict, List, Tuple
 
 from ..errors import TableError
@@ -41,7 +45,7 @@ __all__ = [
     "BUILD_COMMAND",
 ]
 
-FORMAT_VERSION = 1
+FORMAT_VERSION = 2
 DOUBLE_SHUFFLE_MAX = 12
 BUILD_COMMAND = "lowenergy tables build --weight {weight}"
 
@@ -68,6 +72,32 @@ def _gen_parse(s: str) -> Indices:
 
 def _frac_str(q: Fraction) -> str:
     return f"{q.numerator}/{q.denominator}" if q.denominator != 1 else str(q.numerator)
+
+
+class LazyReductions(Mapping):
+    """``{index list: {monomial: Fraction}}`` decoded from the file on demand."""
+
+    def __init__(self, raw: Dict[str, list], basis: List[Monomial]) -> None:
+        self._raw = raw
+        self.basis = basis
+        self._done: Dict[Indices, Dict[Monomial, Fraction]] = {}
+
+    def raw_terms(self, indices: Indices) -> list:
+        """``[[basis position, numerator, denominator], ...]`` without Fractions."""
+        return self._raw[",".join(map(str, indices))]
+
+    def __getitem__(self, indices: Indices) -> Dict[Monomial, Fraction]:
+        got = self._done.get(indices)
+        if got is None:
+            got = {self.basis[pos]: Fraction(num, den) for pos, num, den in self.raw_terms(indices)}
+            self._done[indices] = got
+        return got
+
+    def __iter__(self):
+        return (_gen_parse(k) for k in self._raw)
+
+    def __len__(self) -> int:
+        return len(self._raw)
 
 
 class TableStore:
@@ -126,11 +156,8 @@ class TableStore:
                 f"MZV table {self.path(weight)} has another format or weight",
                 hint=f"rebuild it with `{BUILD_COMMAND.format(weight=weight)}`",
             )
-        reds: Dict[Indices, Dict[Monomial, Fraction]] = {}
-        for key, terms in data["reductions"].items():
-            reds[_gen_parse(key)] = {
-                tuple(_gen_parse(g) for g in mono): Fraction(coef) for mono, coef in terms
-            }
+        basis = [tuple(_gen_parse(g) for g in mono) for mono in data["basis"]]
+        reds = LazyReductions(data["reductions"], basis)
         self._reductions[weight] = reds
         self._generators[weight] = [_gen_parse(g) for g in data["generators"]]
         self._dimension[weight] = data["dimension"]
@@ -147,6 +174,20 @@ class TableStore:
             return {(): Fraction(1)}
         self._need(weight)
         return self._reductions[weight][tuple(indices)]
+
+    def reduction_raw(self, indices: Indices):
+        """``[(monomial, numerator, denominator), ...]`` of a convergent ``ζ(indices)``.
+
+        Avoids building Fractions (used by the modular code paths).
+        """
+        weight = sum(indices)
+        if weight == 0:
+            return [((), 1, 1)]
+        self._need(weight)
+        reds = self._reductions[weight]
+        if isinstance(reds, LazyReductions):
+            return [(reds.basis[pos], num, den) for pos, num, den in reds.raw_terms(tuple(indices))]
+        return [(m, c.numerator, c.denominator) for m, c in reds[tuple(indices)].items()]
 
     def generators(self, weight: int) -> List[Indices]:
         self._need(weight)
@@ -183,6 +224,8 @@ class TableStore:
         self._dimension[w] = table.dimension
         self._stats[w] = dict(table.stats)
         self._falphabet.update(falphabet)
+        basis = sorted({mono for red in table.reductions.values() for mono in red}, key=lambda m: [(sum(g), g) for g in m])
+        pos = {mono: i for i, mono in enumerate(basis)}
         data = {
             "format": FORMAT_VERSION,
             "weight": w,
@@ -192,8 +235,9 @@ class TableStore:
                 _gen_str(g): [[p, list(letters), _frac_str(c)] for (p, letters), c in sorted(f.items())]
                 for g, f in falphabet.items()
             },
+            "basis": [[_gen_str(g) for g in mono] for mono in basis],
             "reductions": {
-                _gen_str(idx): [[[_gen_str(g) for g in mono], _frac_str(c)] for mono, c in sorted(red.items())]
+                _gen_str(idx): [[pos[mono], c.numerator, c.denominator] for mono, c in sorted(red.items())]
                 for idx, red in table.reductions.items()
             },
             "stats": table.stats,
