@@ -152,7 +152,7 @@ def word_values(weight: int, store: TableStore | None = None, exact: bool | None
 # high weights: the same rows modulo 26-bit primes
 # ---------------------------------------------------------------------------
 
-EXACT_MAX_WEIGHT = 12
+EXACT_MAX_WEIGHT = 8
 
 
 class ModularWordValues:
@@ -177,9 +177,40 @@ class ModularWordValues:
         self.basis: List[Monomial] = monomials_of_weight(gens, weight) if weight else [()]
 
     def _rows(self, p: int):
-        if p not in self._data:
-            self._data[p] = self._factory(p, self.store).word_values(self.weight)
-        return self._data[p]
+        """Rows modulo p, cached in memory and on disk (``rows/`` beside the tables).
+
+        The disk cache holds int32 arrays (entries are below 2^26); it is a
+        pure cache: deleting it only costs the time to rebuild.
+        """
+        import os
+        import tempfile
+
+        import numpy as np
+
+        if p in self._data:
+            return self._data[p]
+        folder = self.store.directory / "rows"
+        path = folder / f"weight-{self.weight}-p{p}.npy"
+        rows = None
+        if path.exists():
+            try:
+                rows = np.load(path, allow_pickle=False).astype(np.int64)
+            except (OSError, ValueError):
+                rows = None
+            if rows is not None and rows.shape != (1 << self.weight, len(self.basis)):
+                rows = None
+        if rows is None:
+            rows = self._factory(p, self.store).word_values(self.weight)
+            try:
+                folder.mkdir(parents=True, exist_ok=True)
+                fd, tmp = tempfile.mkstemp(dir=folder, suffix=".npy")
+                with os.fdopen(fd, "wb") as fh:
+                    np.save(fh, rows.astype(np.int32), allow_pickle=False)
+                os.replace(tmp, path)
+            except OSError:
+                pass  # a read-only cache only costs time
+        self._data[p] = rows
+        return rows
 
     def combine(self, coeffs: Dict[int, int]) -> MZV:
         import numpy as np

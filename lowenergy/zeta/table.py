@@ -121,6 +121,10 @@ class TableStore:
     def path(self, weight: int) -> Path:
         return self.directory / f"weight-{weight}.json"
 
+    def meta_path(self, weight: int) -> Path:
+        """Small companion file: generators, dimension, f-alphabet, stats."""
+        return self.directory / f"weight-{weight}.meta.json"
+
     def built_weight(self) -> int:
         """Largest W such that all weights 2..W are on disk (1 if none)."""
         w = 1
@@ -128,37 +132,51 @@ class TableStore:
             w += 1
         return w
 
+    def _missing(self, weight: int) -> TableError:
+        built = self.built_weight()
+        have = f"are built up to weight {built} only" if built >= 2 else "are not built yet"
+        return TableError(
+            f"MZV tables {have} (in {self.directory}); weight {weight} is needed",
+            hint=f"run `{BUILD_COMMAND.format(weight=weight)}`",
+        )
+
+    def _need_meta(self, weight: int) -> None:
+        if weight in self._generators or weight < 2:
+            return
+        if not self.path(weight).exists():
+            raise self._missing(weight)
+        mp = self.meta_path(weight)
+        if not mp.exists():
+            self._load(weight)
+            return
+        data = self._read(mp, weight)
+        self._set_meta(weight, data)
+
     def _need(self, weight: int) -> None:
         if weight in self._reductions:
             return
         if weight < 2:
             return
-        p = self.path(weight)
-        if not p.exists():
-            built = self.built_weight()
-            have = f"are built up to weight {built} only" if built >= 2 else "are not built yet"
-            raise TableError(
-                f"MZV tables {have} (in {self.directory}); weight {weight} is needed",
-                hint=f"run `{BUILD_COMMAND.format(weight=weight)}`",
-            )
+        if not self.path(weight).exists():
+            raise self._missing(weight)
         self._load(weight)
 
-    def _load(self, weight: int) -> None:
+    def _read(self, path: Path, weight: int) -> dict:
         try:
-            data = json.loads(self.path(weight).read_text())
+            data = json.loads(path.read_text())
         except (OSError, ValueError) as exc:
             raise TableError(
-                f"cannot read MZV table {self.path(weight)}: {exc}",
-                hint=f"rebuild it with `{BUILD_COMMAND.format(weight=weight)}`",
+                f"cannot read MZV table {path}: {exc}",
+                hint=f"rebuild it with `{BUILD_COMMAND.format(weight=weight)} --rebuild`",
             ) from None
         if data.get("format") != FORMAT_VERSION or data.get("weight") != weight:
             raise TableError(
-                f"MZV table {self.path(weight)} has another format or weight",
-                hint=f"rebuild it with `{BUILD_COMMAND.format(weight=weight)}`",
+                f"MZV table {path} has another format or weight",
+                hint=f"rebuild it with `{BUILD_COMMAND.format(weight=weight)} --rebuild`",
             )
-        basis = [tuple(_gen_parse(g) for g in mono) for mono in data["basis"]]
-        reds = LazyReductions(data["reductions"], basis)
-        self._reductions[weight] = reds
+        return data
+
+    def _set_meta(self, weight: int, data: dict) -> None:
         self._generators[weight] = [_gen_parse(g) for g in data["generators"]]
         self._dimension[weight] = data["dimension"]
         self._stats[weight] = data.get("stats", {})
@@ -166,6 +184,12 @@ class TableStore:
             self._falphabet[_gen_parse(g)] = {
                 (int(p), tuple(int(a) for a in letters)): Fraction(c) for p, letters, c in terms
             }
+
+    def _load(self, weight: int) -> None:
+        data = self._read(self.path(weight), weight)
+        basis = [tuple(_gen_parse(g) for g in mono) for mono in data["basis"]]
+        self._reductions[weight] = LazyReductions(data["reductions"], basis)
+        self._set_meta(weight, data)
 
     def reduction(self, indices: Indices) -> Dict[Monomial, Fraction]:
         """Canonical form of a convergent ``ζ(indices)``: ``{monomial: coefficient}``."""
@@ -190,7 +214,7 @@ class TableStore:
         return [(m, c.numerator, c.denominator) for m, c in reds[tuple(indices)].items()]
 
     def generators(self, weight: int) -> List[Indices]:
-        self._need(weight)
+        self._need_meta(weight)
         return list(self._generators.get(weight, []))
 
     def all_generators(self, max_weight: int) -> List[Indices]:
@@ -204,15 +228,15 @@ class TableStore:
             return 1
         if weight == 1:
             return 0
-        self._need(weight)
+        self._need_meta(weight)
         return self._dimension[weight]
 
     def stats(self, weight: int) -> dict:
-        self._need(weight)
+        self._need_meta(weight)
         return dict(self._stats.get(weight, {}))
 
     def falphabet_of_generator(self, g: Indices) -> Dict[FKey, Fraction]:
-        self._need(sum(g))
+        self._need_meta(sum(g))
         return self._falphabet[tuple(g)]
 
     # -- building ----------------------------------------------------------
@@ -247,6 +271,11 @@ class TableStore:
         with os.fdopen(fd, "w") as fh:
             json.dump(data, fh, separators=(",", ":"))
         os.replace(tmp, self.path(w))
+        meta = {k: v for k, v in data.items() if k not in ("basis", "reductions")}
+        fd, tmp = tempfile.mkstemp(dir=self.directory, suffix=".tmp")
+        with os.fdopen(fd, "w") as fh:
+            json.dump(meta, fh, separators=(",", ":"))
+        os.replace(tmp, self.meta_path(w))
 
     def forget(self) -> None:
         """Drop everything held in memory (files stay)."""
@@ -297,9 +326,13 @@ def build_tables(
 
     store = store or default_store()
     if rebuild:
+        import shutil
+
+        shutil.rmtree(store.directory / "rows", ignore_errors=True)  # cached word-value rows
         for w in range(2, max_weight + 1):
-            if store.path(w).exists():
-                store.path(w).unlink()
+            for path in (store.path(w), store.meta_path(w)):
+                if path.exists():
+                    path.unlink()
         store.forget()
     gens: List[Indices] = []
     for w in range(2, max_weight + 1):
