@@ -1,0 +1,736 @@
+"""Fix the free parameters of an expansion with a constraint set.
+
+Method
+------
+Every equality constraint with an exact right-hand side gives a residual
+``lhs − rhs`` that is a polynomial in the parameters with MZV coefficients.
+Written in the canonical MZV basis (equal numbers have identical forms, and
+the canonical monomials are linearly independent over Q) it vanishes iff the
+rational coefficient of every canonical monomial vanishes, so each
+constraint splits exactly into one rational equation per monomial.  Only
+relations of degree ≤ 1 in the parameters are supported: a residual with a
+product or power of parameters is refused with an
+:class:`~lowenergy.errors.InputError` naming the constraint and the term.
+
+The linear system is brought to reduced row echelon form over Q (Python
+fractions), and the outcome is one of
+
+``"unique"``
+    every parameter has one rational value (:attr:`FixReport.solution`);
+``"underdetermined"``
+    the system is consistent but some parameters stay free
+    (:attr:`FixReport.free`); the others are either fixed
+    (:attr:`~FixReport.solution`) or affine in the free ones
+    (:attr:`~FixReport.dependent`).  :attr:`~FixReport.depending` lists the
+    coefficients of the expansion that still depend on the free parameters,
+    and :attr:`~FixReport.suggestions` a smallest greedy choice among them
+    whose values would fix all of them (judged by their linear part);
+    :attr:`~FixReport.unfixable` names free parameters that no coefficient up
+    to the expansion's order can fix;
+``"inconsistent"``
+    no parameter values satisfy all equalities;
+    :attr:`~FixReport.conflict` is a minimal set of constraints that conflict
+    (found by deletion filtering: dropping any one of them leaves a
+    consistent system; it is minimal, not necessarily of smallest size).
+
+Constraints that are inequalities or have a numeric ``rhs_value`` do not
+enter the system; they are checked (together with all others) on the fixed
+expansion, :attr:`FixReport.check`.
+
+Writing the fixed integrand
+---------------------------
+:func:`write_fixed_integrand` takes the TOML text of an integrand file and
+returns a new TOML text in which
+
+* every occurrence of a solved parameter in the ``integrand`` expression is
+  replaced by its value in parentheses, e.g. ``a1`` → ``(1/2)`` (or by its
+  affine expression in the free parameters, ``(1/2 - 3*a2)``, for an
+  under-determined :class:`FixReport`).  The replacement is done on the
+  tokens of the expression (identifiers equal to the parameter name and not
+  followed by ``(``), never inside other names;
+* the solved parameters are removed from ``parameters``;
+* a line ``Parameters fixed by lowenergy: a1 = 1/2, ...`` is appended to
+  ``notes``.
+
+The document is written anew from the data (keys in their original order,
+strings re-escaped, the integrand on one line); comments and layout of the
+original are not kept.  The result is read back with the integrand reader
+and its terms are compared exactly with :func:`substitute` applied to the
+original integrand before it is returned.
+
+Examples
+--------
+>>> from lowenergy.expansion.result import Expansion
+>>> from lowenergy.constraints.model import constraints_from_text
+>>> e = Expansion(("s", "t"), ("a", "b"), 1,
+...               {(0, 0): {(1, 0): MZV.one(), (0, 1): MZV.one()},
+...                (1, 0): {(1, 0): MZV.one(), (0, 0): MZV.rational(-1)}})
+>>> cs = constraints_from_text('''source = "doctest"
+... [[constraint]]
+... name = "c00"
+... relation = "c[0,0]"
+... kind = "="
+... rhs = "3"
+... [[constraint]]
+... name = "c10"
+... relation = "c[1,0]"
+... kind = "="
+... rhs = "1"
+... ''')
+>>> report = fix(e, cs)
+>>> report.status, report.solution
+('unique', {'a': Fraction(2, 1), 'b': Fraction(1, 1)})
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import re
+import sys
+from dataclasses import dataclass, field
+from fractions import Fraction
+from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
+
+from ..errors import InputError, LowEnergyError, ParseError
+from ..expansion.result import Expansion
+from ..integrand.model import Integrand
+from ..zeta.element import MZV
+from ..zeta.table import TableStore
+from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, _as_constraints, check, check_order, exact_sides
+from .model import Constraint
+
+if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
+
+__all__ = ["fix", "FixReport", "substitute", "write_fixed_integrand", "UNIQUE", "UNDERDETERMINED", "INCONSISTENT"]
+
+UNIQUE, UNDERDETERMINED, INCONSISTENT = "unique", "underdetermined", "inconsistent"
+
+Affine = Tuple[Fraction, Dict[str, Fraction]]
+Row = List[Fraction]
+
+
+# ==========================================================================
+# exact linear algebra over Q
+# ==========================================================================
+
+
+def _rref(rows: Sequence[Row], ncols: int) -> Tuple[List[Row], List[int]]:
+    """Reduced row echelon form (non-zero rows) and pivot columns."""
+    m = [list(r) for r in rows]
+    pivots: List[int] = []
+    r = 0
+    for col in range(ncols):
+        if r == len(m):
+            break
+        pivot = next((i for i in range(r, len(m)) if m[i][col] != 0), None)
+        if pivot is None:
+            continue
+        m[r], m[pivot] = m[pivot], m[r]
+        inv = 1 / m[r][col]
+        m[r] = [x * inv for x in m[r]]
+        for i in range(len(m)):
+            if i != r and m[i][col] != 0:
+                f = m[i][col]
+                m[i] = [a - f * b for a, b in zip(m[i], m[r])]
+        pivots.append(col)
+        r += 1
+    return m[:r], pivots
+
+
+def _consistent(rows: Sequence[Row], n: int) -> bool:
+    """Whether the augmented system (last column = right-hand side) has a solution."""
+    _, pivots = _rref(rows, n + 1)
+    return n not in pivots
+
+
+def _minimal_conflict(groups: Dict[str, List[Row]], n: int) -> Tuple[str, ...]:
+    """Deletion filter: a minimal inconsistent subset of the groups."""
+    current = list(groups)
+    for name in list(current):
+        trial = [x for x in current if x != name]
+        rows = [row for x in trial for row in groups[x]]
+        if not _consistent(rows, n):
+            current = trial
+    return tuple(current)
+
+
+def _mono_text(pe: Tuple[int, ...], params: Sequence[str]) -> str:
+    parts = [name if e == 1 else f"{name}^{e}" for name, e in zip(params, pe) if e]
+    return "*".join(parts) or "1"
+
+
+def _equations(
+    c: Constraint, values: CoefficientValues, params: Tuple[str, ...], store
+) -> List[Row]:
+    """One row ``[q_1, ..., q_n | -q_0]`` per canonical MZV monomial of the residual."""
+    n = len(params)
+    lhs, rhs = exact_sides(c, values, store)
+    zero = (0,) * n
+    residual = dict(lhs)
+    if rhs:
+        y = residual.get(zero, MZV()) - rhs
+        if y:
+            residual[zero] = y
+        else:
+            residual.pop(zero, None)
+    rows: Dict[tuple, Row] = {}
+    for pe, x in residual.items():
+        if sum(pe) > 1:
+            raise InputError(
+                f"constraint '{c.name}' is not linear in the parameters (it contains {_mono_text(pe, params)})",
+                source=c.source,
+                line=c.line,
+                term=_mono_text(pe, params),
+                hint="fix solves linear systems only; check such constraints with `check` after fixing "
+                "the parameters with linear ones",
+            )
+        col = pe.index(1) if any(pe) else n
+        for mono, q in x.as_dict().items():
+            row = rows.setdefault(mono, [Fraction(0)] * (n + 1))
+            row[col] += q if col < n else -q
+    return [r for r in rows.values() if any(r)]
+
+
+# ==========================================================================
+# the report
+# ==========================================================================
+
+
+@dataclass
+class FixReport:
+    """The outcome of :func:`fix`.
+
+    Attributes
+    ----------
+    status:
+        ``"unique"``, ``"underdetermined"`` or ``"inconsistent"``.
+    parameters:
+        All parameters of the expansion.
+    solution:
+        Parameters with a unique value: ``{name: Fraction}``.
+    dependent:
+        (under-determined) parameters fixed in terms of the free ones:
+        ``{name: (constant, {free name: coefficient})}``.
+    free:
+        (under-determined) parameters left free.
+    conflict:
+        (inconsistent) a minimal set of conflicting constraint names.
+    used, deferred:
+        Names of the constraints that entered the linear system (exact
+        equalities) and of those only checked afterwards.
+    equations, rank:
+        Number of rational equations and rank of the system.
+    depending, suggestions, unfixable:
+        (under-determined) coefficients still depending on the free
+        parameters; a greedy smallest set of them that would fix all free
+        parameters; free parameters no coefficient can fix.
+    fixed:
+        The expansion with the solution substituted (None if inconsistent).
+    check:
+        :func:`~lowenergy.constraints.check.check` of all constraints on
+        :attr:`fixed` (None if inconsistent).
+    """
+
+    status: str
+    parameters: Tuple[str, ...]
+    solution: Dict[str, Fraction] = field(default_factory=dict)
+    dependent: Dict[str, Affine] = field(default_factory=dict)
+    free: Tuple[str, ...] = ()
+    conflict: Tuple[str, ...] = ()
+    used: Tuple[str, ...] = ()
+    deferred: Tuple[str, ...] = ()
+    equations: int = 0
+    rank: int = 0
+    depending: Tuple[str, ...] = ()
+    suggestions: Tuple[str, ...] = ()
+    unfixable: Tuple[str, ...] = ()
+    fixed: Optional[Expansion] = None
+    check: Optional[CheckReport] = None
+
+    @property
+    def substitution(self) -> Dict[str, Affine]:
+        """Every solved parameter as ``(constant, {free parameter: coefficient})``."""
+        out: Dict[str, Affine] = {name: (value, {}) for name, value in self.solution.items()}
+        out.update(self.dependent)
+        return out
+
+    @property
+    def ok(self) -> bool:
+        """Unique solution and every constraint passes on it."""
+        return self.status == UNIQUE and self.check is not None and self.check.ok
+
+    def to_text(self) -> str:
+        lines = [f"status: {self.status} ({self.equations} rational equations of rank {self.rank} "
+                 f"in {len(self.parameters)} parameters)"]
+        if self.used:
+            lines.append("solved with: " + ", ".join(self.used))
+        if self.deferred:
+            lines.append("checked afterwards: " + ", ".join(self.deferred))
+        for name, value in self.solution.items():
+            lines.append(f"  {name} = {value}")
+        for name, aff in self.dependent.items():
+            lines.append(f"  {name} = {_affine_text(aff)}")
+        if self.free:
+            lines.append("free parameters: " + ", ".join(self.free))
+            if self.suggestions:
+                lines.append("coefficients that would fix them: " + ", ".join(self.suggestions))
+            if self.unfixable:
+                lines.append("not fixed by any coefficient up to this order: " + ", ".join(self.unfixable))
+        if self.conflict:
+            lines.append("conflicting constraints (minimal set): " + ", ".join(self.conflict))
+        if self.check is not None:
+            s = self.check.summary
+            lines.append(f"check at the solution: {s['PASS']} passed, {s['FAIL']} failed, "
+                         f"{s['DEPENDS']} depend on free parameters")
+            for r in self.check:
+                if not r.passed:
+                    lines.append(f"  {r.status} {r.name}: residual {r.residual_text()}")
+        return "\n".join(lines)
+
+    def to_dict(self) -> dict:
+        return {
+            "status": self.status,
+            "parameters": list(self.parameters),
+            "solution": {k: str(v) for k, v in self.solution.items()},
+            "dependent": {k: _affine_text(v) for k, v in self.dependent.items()},
+            "free": list(self.free),
+            "conflict": list(self.conflict),
+            "used": list(self.used),
+            "deferred": list(self.deferred),
+            "equations": self.equations,
+            "rank": self.rank,
+            "depending": list(self.depending),
+            "suggestions": list(self.suggestions),
+            "unfixable": list(self.unfixable),
+            "check": None if self.check is None else self.check.to_dict(),
+        }
+
+
+def _affine_text(aff: Affine) -> str:
+    const, deps = aff
+    parts: List[str] = []
+    if const or not deps:
+        parts.append(str(const))
+    for name, q in deps.items():
+        sign = "-" if q < 0 else "+"
+        mag = abs(q)
+        term = name if mag == 1 else f"{mag}*{name}"
+        if not parts:
+            parts.append(term if q > 0 else f"-{term}")
+        else:
+            parts.append(f"{sign} {term}")
+    return " ".join(parts)
+
+
+# ==========================================================================
+# fix
+# ==========================================================================
+
+
+def fix(
+    expansion: Expansion,
+    constraints,
+    *,
+    digits: int = DEFAULT_DIGITS,
+    store: Optional[TableStore] = None,
+) -> FixReport:
+    """Solve the exact equality constraints for the expansion's parameters.
+
+    See the module docstring for the method and the report.  Raises
+    :class:`~lowenergy.errors.InputError` for coefficients beyond the
+    expansion's order and for constraints that are not linear in the
+    parameters, :class:`~lowenergy.errors.TableError` when an MZV in a
+    relation needs tables that are not built.
+    """
+    if not isinstance(expansion, Expansion):
+        raise TypeError(f"fix needs an Expansion, not {type(expansion).__name__}")
+    items, _ = _as_constraints(constraints)
+    check_order(expansion, items)
+    params = tuple(expansion.parameters)
+    n = len(params)
+    values = CoefficientValues(expansion)
+    groups: Dict[str, List[Row]] = {}
+    deferred: List[str] = []
+    for c in items:
+        if c.kind == "=" and c.exact:
+            groups[c.name] = _equations(c, values, params, store)
+        else:
+            deferred.append(c.name)
+    rows = [row for g in groups.values() for row in g]
+    reduced, pivots = _rref(rows, n + 1)
+    base = dict(parameters=params, used=tuple(groups), deferred=tuple(deferred), equations=len(rows))
+    if n in pivots:
+        conflict = _minimal_conflict(groups, n)
+        return FixReport(status=INCONSISTENT, conflict=conflict, rank=len(pivots) - 1, **base)
+    free = tuple(params[k] for k in range(n) if k not in pivots)
+    solution: Dict[str, Fraction] = {}
+    dependent: Dict[str, Affine] = {}
+    for row, col in zip(reduced, pivots):
+        deps = {params[f]: -row[f] for f in range(n) if f not in pivots and row[f] != 0}
+        if deps:
+            dependent[params[col]] = (row[n], deps)
+        else:
+            solution[params[col]] = row[n]
+    # keep the parameters' own order
+    solution = {p: solution[p] for p in params if p in solution}
+    dependent = {p: dependent[p] for p in params if p in dependent}
+    substitution: Dict[str, Affine] = {name: (v, {}) for name, v in solution.items()}
+    substitution.update(dependent)
+    fixed = _substitute_expansion(expansion, substitution)
+    report = check(fixed, items, digits=digits, store=store)
+    status = UNIQUE if not free else UNDERDETERMINED
+    depending, suggestions, unfixable = _suggest(fixed) if free else ((), (), ())
+    return FixReport(
+        status=status,
+        solution=solution,
+        dependent=dependent,
+        free=free,
+        rank=len(pivots),
+        depending=depending,
+        suggestions=suggestions,
+        unfixable=unfixable,
+        fixed=fixed,
+        check=report,
+        **base,
+    )
+
+
+def _suggest(fixed: Expansion) -> Tuple[Tuple[str, ...], Tuple[str, ...], Tuple[str, ...]]:
+    """Coefficients depending on the free parameters; a greedy fixing set; unfixable parameters."""
+    params = fixed.parameters
+    n = len(params)
+    depending: List[str] = []
+    suggestions: List[str] = []
+    basis: List[Row] = []
+    for key in fixed.monomials():
+        pp = fixed.coefficients.get(key, {})
+        if not any(any(pe) and x for pe, x in pp.items()):
+            continue
+        name = f"c[{key[0]},{key[1]}]"
+        depending.append(name)
+        rows: Dict[tuple, Row] = {}
+        for pe, x in pp.items():
+            if sum(pe) == 1:
+                col = pe.index(1)
+                for mono, q in x.as_dict().items():
+                    rows.setdefault(mono, [Fraction(0)] * n)[col] += q
+        if len(basis) < n:
+            trial = basis + [r for r in rows.values() if any(r)]
+            reduced, _ = _rref(trial, n)
+            if len(reduced) > len(basis):
+                suggestions.append(name)
+                basis = reduced
+    reduced, pivots = _rref(basis, n)
+    fixable = set()
+    for row, col in zip(reduced, pivots):
+        if all(row[k] == 0 for k in range(n) if k != col):
+            fixable.add(col)
+    unfixable = tuple(params[k] for k in range(n) if k not in fixable)
+    return tuple(depending), tuple(suggestions), unfixable
+
+
+# ==========================================================================
+# substitution
+# ==========================================================================
+
+QPoly = Dict[Tuple[int, ...], Fraction]
+
+
+def _normalize(parameters: Sequence[str], solution) -> Dict[str, Affine]:
+    """``{name: (constant, {remaining name: coefficient})}`` from a mapping or a FixReport."""
+    if isinstance(solution, FixReport):
+        if solution.status == INCONSISTENT:
+            raise InputError(
+                "the constraints are inconsistent: there is no solution to substitute",
+                hint="conflicting constraints: " + ", ".join(solution.conflict),
+            )
+        mapping: Dict[str, Affine] = solution.substitution
+    elif isinstance(solution, Mapping):
+        mapping = {}
+        for name, value in solution.items():
+            if isinstance(value, bool) or not isinstance(value, (int, Fraction)):
+                raise InputError(
+                    f"the value of parameter '{name}' must be an exact rational, not {type(value).__name__}",
+                    term=str(name),
+                    hint="use int or fractions.Fraction",
+                )
+            mapping[name] = (Fraction(value), {})
+    else:
+        raise InputError(
+            f"a solution must be a mapping of parameter names to rationals or a FixReport, not {type(solution).__name__}"
+        )
+    for name, (_, deps) in mapping.items():
+        if name not in parameters:
+            raise InputError(
+                f"unknown parameter '{name}'",
+                term=str(name),
+                hint="the parameters are: " + (", ".join(parameters) or "(none)"),
+            )
+        for other in deps:
+            if other not in parameters or other in mapping:
+                raise InputError(f"parameter '{name}' is expressed through '{other}', which is not a free parameter")
+    return mapping
+
+
+def _qmul(a: QPoly, b: QPoly) -> QPoly:
+    out: QPoly = {}
+    for ka, va in a.items():
+        for kb, vb in b.items():
+            k = tuple(x + y for x, y in zip(ka, kb))
+            y = out.get(k, Fraction(0)) + va * vb
+            if y:
+                out[k] = y
+            else:
+                out.pop(k, None)
+    return out
+
+
+class _Substituter:
+    def __init__(self, parameters: Sequence[str], mapping: Dict[str, Affine]) -> None:
+        self.parameters = tuple(parameters)
+        self.remaining = tuple(p for p in parameters if p not in mapping)
+        index = {p: k for k, p in enumerate(self.remaining)}
+        m = len(self.remaining)
+        self.zero = (0,) * m
+        self.polys: Dict[str, QPoly] = {}
+        for name, (const, deps) in mapping.items():
+            poly: QPoly = {self.zero: Fraction(const)} if const else {}
+            for other, q in deps.items():
+                key = tuple(1 if k == index[other] else 0 for k in range(m))
+                if q:
+                    poly[key] = poly.get(key, Fraction(0)) + Fraction(q)
+            self.polys[name] = poly
+        self.index = index
+        self._powers: Dict[Tuple[str, int], QPoly] = {}
+
+    def power(self, name: str, e: int) -> QPoly:
+        key = (name, e)
+        if key not in self._powers:
+            result: QPoly = {self.zero: Fraction(1)}
+            for _ in range(e):
+                result = _qmul(result, self.polys[name])
+            self._powers[key] = result
+        return self._powers[key]
+
+    def poly(self, poly: Dict[tuple, MZV], prefix: int) -> Dict[tuple, MZV]:
+        out: Dict[tuple, MZV] = {}
+        for key, x in poly.items():
+            if not x:
+                continue
+            head, pe = key[:prefix], key[prefix:]
+            acc: QPoly = {self.zero: Fraction(1)}
+            shift = [0] * len(self.remaining)
+            for name, e in zip(self.parameters, pe):
+                if not e:
+                    continue
+                if name in self.polys:
+                    acc = _qmul(acc, self.power(name, e))
+                else:
+                    shift[self.index[name]] += e
+            for k, q in acc.items():
+                new = head + tuple(a + b for a, b in zip(k, shift))
+                y = out.get(new, MZV()) + x * q
+                if y:
+                    out[new] = y
+                else:
+                    out.pop(new, None)
+        return out
+
+
+def _fixed_note(mapping: Dict[str, Affine]) -> Dict[str, str]:
+    return {name: _affine_text(aff) for name, aff in mapping.items()}
+
+
+def _substitute_expansion(expansion: Expansion, mapping: Dict[str, Affine]) -> Expansion:
+    sub = _Substituter(expansion.parameters, mapping)
+    coefficients = {}
+    for key, pp in expansion.coefficients.items():
+        new = sub.poly(pp, 0)
+        if new:
+            coefficients[key] = new
+    meta = dict(expansion.meta)
+    meta["fixed"] = {**meta.get("fixed", {}), **_fixed_note(mapping)}
+    return dataclasses.replace(expansion, parameters=sub.remaining, coefficients=coefficients, meta=meta)
+
+
+def _substitute_integrand(integrand: Integrand, mapping: Dict[str, Affine]) -> Integrand:
+    sub = _Substituter(integrand.parameters, mapping)
+    terms = []
+    for term in integrand.terms:
+        new = sub.poly(term.coefficient, 2)
+        if new:
+            terms.append(dataclasses.replace(term, coefficient=new))
+    extra = dict(integrand.extra)
+    extra["fixed"] = {**extra.get("fixed", {}), **_fixed_note(mapping)}
+    return dataclasses.replace(integrand, terms=terms, parameters=sub.remaining, extra=extra)
+
+
+def substitute(target: Union[Expansion, Integrand], solution) -> Union[Expansion, Integrand]:
+    """Put parameter values into an expansion or an integrand.
+
+    ``solution`` is ``{name: int | Fraction}`` or a :class:`FixReport` (whose
+    solved and dependent parameters are substituted; free ones stay).  The
+    substituted parameters disappear from ``parameters``; the values are
+    recorded in ``meta["fixed"]`` (expansion) or ``extra["fixed"]``
+    (integrand).  Expanding commutes with substituting.
+    """
+    if isinstance(target, Expansion):
+        return _substitute_expansion(target, _normalize(target.parameters, solution))
+    if isinstance(target, Integrand):
+        return _substitute_integrand(target, _normalize(target.parameters, solution))
+    raise TypeError(f"substitute needs an Expansion or an Integrand, not {type(target).__name__}")
+
+
+# ==========================================================================
+# writing the fixed integrand file
+# ==========================================================================
+
+_DIGITS = frozenset("0123456789")
+_IDENT_FIRST = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz_")
+_IDENT_REST = _IDENT_FIRST | frozenset("0123456789")
+
+
+def _replace_names(text: str, replacements: Dict[str, str]) -> str:
+    """Replace identifier tokens (not call names) of an expression."""
+    out: List[str] = []
+    n = len(text)
+    i = 0
+    while i < n:
+        ch = text[i]
+        if ch in _DIGITS:
+            j = i
+            while j < n and (text[j] in _DIGITS or text[j] == "."):
+                j += 1
+            out.append(text[i:j])
+            i = j
+            continue
+        if ch in _IDENT_FIRST:
+            j = i
+            while j < n and text[j] in _IDENT_REST:
+                j += 1
+            name = text[i:j]
+            k = j
+            while k < n and text[k] in " \t\r\n":
+                k += 1
+            is_call = k < n and text[k] == "("
+            out.append(replacements[name] if name in replacements and not is_call else name)
+            i = j
+            continue
+        out.append(ch)
+        i += 1
+    return "".join(out)
+
+
+_BARE = re.compile(r"[A-Za-z0-9_-]+\Z")
+
+
+def _toml_string(s: str) -> str:
+    out = ['"']
+    for ch in s:
+        if ch == '"':
+            out.append('\\"')
+        elif ch == "\\":
+            out.append("\\\\")
+        elif ch == "\n":
+            out.append("\\n")
+        elif ch == "\t":
+            out.append("\\t")
+        elif ch == "\r":
+            out.append("\\r")
+        elif ord(ch) < 0x20 or ord(ch) == 0x7F:
+            out.append(f"\\u{ord(ch):04X}")
+        else:
+            out.append(ch)
+    out.append('"')
+    return "".join(out)
+
+
+def _toml_key(key: str) -> str:
+    return key if _BARE.match(key) else _toml_string(key)
+
+
+def _toml_value(value) -> str:
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, float):
+        if value != value:
+            return "nan"
+        if value in (float("inf"), float("-inf")):
+            return "inf" if value > 0 else "-inf"
+        return repr(value)
+    if isinstance(value, str):
+        return _toml_string(value)
+    if isinstance(value, list):
+        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
+    if isinstance(value, dict):
+        return "{" + ", ".join(f"{_toml_key(k)} = {_toml_value(v)}" for k, v in value.items()) + "}"
+    if hasattr(value, "isoformat"):
+        return value.isoformat()
+    raise InputError(f"cannot write a TOML value of type {type(value).__name__}")  # pragma: no cover
+
+
+def _term_sums(itg: Integrand) -> Dict[tuple, Dict[tuple, MZV]]:
+    out: Dict[tuple, Dict[tuple, MZV]] = {}
+    for term in itg.terms:
+        key = (term.x_exp, term.y_exp, tuple(term.word))
+        slot = out.setdefault(key, {})
+        for k, x in term.coefficient.items():
+            y = slot.get(k, MZV()) + x
+            if y:
+                slot[k] = y
+            else:
+                slot.pop(k, None)
+    return {k: v for k, v in out.items() if v}
+
+
+def write_fixed_integrand(source_toml_text, solution, *, source: str = "<integrand>", store=None) -> str:
+    """A new integrand TOML text with the solved parameters put in.
+
+    ``solution`` is ``{name: int | Fraction}`` or a :class:`FixReport`.  See
+    the module docstring for what changes; the original text is first read
+    with the integrand reader (so its errors are reported as usual), and the
+    result is read back and compared exactly with
+    ``substitute(original, solution)``.
+    """
+    from ..integrand.reader import integrand_from_text
+
+    original = integrand_from_text(source_toml_text, source, store=store)
+    mapping = _normalize(original.parameters, solution)
+    text = source_toml_text.decode("utf-8-sig") if isinstance(source_toml_text, (bytes, bytearray)) else source_toml_text
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    try:
+        data = tomllib.loads(text)
+    except (tomllib.TOMLDecodeError, RecursionError):  # pragma: no cover - the reader accepted it
+        raise ParseError("malformed TOML", source=source) from None
+    replacements = {name: f"({_affine_text(aff)})" for name, aff in mapping.items()}
+    expression = data["integrand"].replace("\r\n", " ").replace("\n", " ").replace("\r", " ")
+    data["integrand"] = _replace_names(expression, replacements)
+    if "parameters" in data:
+        data["parameters"] = [p for p in data["parameters"] if p not in mapping]
+    if mapping:
+        line = "Parameters fixed by lowenergy: " + ", ".join(f"{k} = {_affine_text(v)}" for k, v in mapping.items())
+        notes = data.get("notes", "")
+        data["notes"] = f"{notes}\n{line}" if notes else line
+    new_text = "".join(f"{_toml_key(k)} = {_toml_value(v)}\n" for k, v in data.items())
+    try:
+        rewritten = integrand_from_text(new_text, source, store=store)
+    except LowEnergyError as err:  # pragma: no cover - would be a bug in the textual substitution
+        raise InputError(
+            f"the fixed integrand could not be read back: {err.message}",
+            source=source,
+            hint="report this; substitute() on the integrand still works",
+        ) from None
+    expected = _substitute_integrand(original, mapping)
+    if _term_sums(rewritten) != _term_sums(expected) or tuple(rewritten.parameters) != tuple(expected.parameters):
+        raise InputError(  # pragma: no cover - would be a bug in the textual substitution
+            "the textual substitution does not reproduce the substituted integrand",
+            source=source,
+            hint="report this; substitute() on the integrand still works",
+        )
+    return new_text

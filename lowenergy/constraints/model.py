@@ -1,0 +1,1228 @@
+"""Constraint files: the format, the safe reader and the data model.
+
+A constraint file is a small TOML document listing relations that the Wilson
+coefficients of an expansion must satisfy::
+
+    title  = "Open superstring, flat space"
+    source = "Gamma-function closed form, expanded with A&S 6.1.33"
+
+    [[constraint]]
+    name     = "c[0,1]"
+    relation = "c[0,1]"
+    kind     = "="
+    rhs      = "zeta(2)"
+
+    [[constraint]]
+    name      = "order-2 sum"
+    relation  = "c[2,0] - 2*c[1,1] + zeta(3)*c[0,2]"
+    kind      = "<="
+    rhs_value = 1.25
+    abs_tol   = 1e-6
+    note      = "invented example"
+
+Top-level keys (exactly these; anything else is an error with a did-you-mean
+hint):
+
+``source`` (string, required, non-empty)
+    Provenance: the publication, handbook equation or derivation the numbers
+    come from.
+``title``, ``notes`` (strings, optional)
+    Free text.
+``template`` (boolean, optional, default false)
+    Marks a file whose numbers are invented (a template to copy); check
+    reports carry a warning for it.
+``constraint`` (array of tables, required, at least one)
+    The constraints, written as ``[[constraint]]`` tables.
+
+Keys of a ``[[constraint]]`` table:
+
+``name`` (string, required)
+    Unique within the file; at most 100 printable characters.
+``relation`` (string, required)
+    A polynomial in coefficient names with MZV coefficients, in the
+    expression grammar of :mod:`lowenergy.parse` extended by coefficient
+    references (below): rationals and decimals (``0.25`` is exactly 1/4),
+    ``zeta(n1, ..., nk)`` (convergent, first index ≥ 2), ``G(a1, ..., an;
+    1)`` (letters 0 and 1, shuffle-regularized), ``pi`` (even total powers),
+    ``+ - * / ^`` and parentheses.  Exponents and divisors must be rational
+    constants (numbers and arithmetic only): relations are polynomials in
+    the coefficients.  A multi-line string may be used; line breaks count as
+    blanks.
+``kind`` (string, required)
+    ``"="``, ``"<="`` or ``">="``: the relation compared with the right-hand
+    side.
+``rhs`` (string or integer) -- the exact right-hand side
+    An MZV expression (same grammar, without coefficient names), e.g.
+    ``"zeta(2)"``, ``"-2/5*zeta(2)^2"``, ``"pi^4/90"``, ``0``.
+``rhs_value`` (number, or a string holding a decimal such as
+``"1.6449340668482264365"`` to keep more than 17 digits) -- a numeric
+right-hand side, which needs a tolerance:
+``abs_tol``, ``rel_tol`` (non-negative numbers or decimal strings)
+    The relation holds numerically when
+    ``|lhs − rhs_value| ≤ abs_tol + rel_tol·|rhs_value|`` (missing tolerances
+    count as 0); for ``<=`` the test is ``lhs − rhs_value ≤ tol`` and for
+    ``>=`` it is ``lhs − rhs_value ≥ −tol``.
+``uncertainty`` (non-negative number or decimal string)
+    An absolute uncertainty of ``rhs_value``; it plays the role of
+    ``abs_tol`` (so the two may not be given together; ``rel_tol`` may).
+``note`` (string, optional)
+
+Exactly one of ``rhs`` and ``rhs_value`` must be present; tolerances only go
+with ``rhs_value``, and ``rhs_value`` needs at least one of ``abs_tol``,
+``rel_tol``, ``uncertainty``.  An inequality may have an exact ``rhs``: it is
+decided from the sign of the exact residual.
+
+Coefficient names (shared with the tables, :mod:`lowenergy.tables.bases`):
+
+``c[i,j]``
+    The coefficient of ``s^i t^j`` (``i``, ``j`` integers; poles negative,
+    e.g. ``c[-1,0]`` multiplies ``1/s``).  Order ``i + j``.
+``sym[i,j]`` (``i ≥ j ≥ 0``)
+    The coefficient of the symmetric-basis element ``s^i t^j + s^j t^i``
+    (``s^i t^i`` when ``i = j``), i.e. ``(c[i,j] + c[j,i])/2`` for
+    ``i ≠ j``.  Order ``i + j``.
+``sigma[a,b]`` (``a, b ≥ 0``)
+    The coefficient of ``σ2^a σ3^b`` (``σ2 = s²+t²+u²``, ``σ3 = s³+t³+u³``,
+    ``u = −s−t``) in the average of the contact terms over the six
+    permutations of ``(s, t, u)``.  Order ``2a + 3b``.
+
+Blanks are allowed inside the brackets (``c[ 2, -1 ]``).  A coefficient
+reference is replaced by a placeholder identifier of the same length before
+the text goes to the parser, so every column in an error message is the
+column of the original text; placeholders are matched by name *and* column,
+so an identifier typed by the user can never stand for a coefficient.
+
+Nothing is evaluated as Python code: TOML is read by :mod:`tomllib`, the
+relations by the hand-written parser, and trees are walked iteratively.
+Every problem is reported as :class:`~lowenergy.errors.ParseError`
+(malformed TOML or expression) or :class:`~lowenergy.errors.InputError`
+(well-formed but unsupported or inconsistent) with the file name, line,
+column (when the value can be located exactly), the offending term and a
+hint.
+
+Examples
+--------
+>>> cs = constraints_from_text('''
+... source = "by hand"
+... [[constraint]]
+... name = "crossing 1"
+... relation = "c[2, 1] - c[1,2]"
+... kind = "="
+... rhs = 0
+... ''', source="x.toml")
+>>> [ref.name for ref in cs.constraints[0].refs], cs.required_order()
+(['c[2,1]', 'c[1,2]'], 3)
+>>> constraints_from_text('source = "s"\\n[[constraint]]\\nname = "a"\\n'
+...                       'relation = "d[1,0]"\\nkind = "="\\nrhs = 0\\n', source="y.toml")
+Traceback (most recent call last):
+    ...
+lowenergy.errors.ParseError: y.toml, line 4, column 13: unknown coefficient family 'd' (in the relation of constraint 'a') (term: 'd[1,0]'); hint: coefficients are written c[i,j], sym[i,j] (i >= j >= 0) or sigma[a,b]
+"""
+
+from __future__ import annotations
+
+import bisect
+import difflib
+import math
+import os
+import re
+import sys
+from dataclasses import dataclass, field
+from decimal import Decimal, InvalidOperation
+from fractions import Fraction
+from typing import Dict, Iterator, List, Optional, Sequence, Tuple
+
+from ..errors import InputError, LowEnergyError, ParseError
+from ..parse import Call, Div, Node, Num, Pow, Sym, parse_expression, to_text
+
+if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
+
+__all__ = [
+    "CoefficientRef",
+    "Constraint",
+    "ConstraintSet",
+    "read_constraints",
+    "constraints_from_text",
+    "required_order",
+    "KINDS",
+    "FAMILIES",
+    "TOP_LEVEL_KEYS",
+    "CONSTRAINT_KEYS",
+    "MAX_FILE_SIZE",
+    "MAX_CONSTRAINTS",
+    "MAX_INDEX",
+    "MAX_MZV_WEIGHT",
+]
+
+#: The comparison kinds.
+KINDS = ("=", "<=", ">=")
+#: The coefficient families.
+FAMILIES = ("c", "sym", "sigma")
+#: Keys allowed at the top level of a constraint file.
+TOP_LEVEL_KEYS = ("title", "source", "notes", "template", "constraint")
+#: Keys allowed in a ``[[constraint]]`` table.
+CONSTRAINT_KEYS = ("name", "relation", "kind", "rhs", "rhs_value", "abs_tol", "rel_tol", "uncertainty", "note")
+#: Largest constraint file, in bytes.
+MAX_FILE_SIZE = 1_000_000
+#: Most constraints in one file.
+MAX_CONSTRAINTS = 10_000
+#: Largest absolute value of an index in ``c[i,j]``, ``sym[i,j]``, ``sigma[a,b]``.
+MAX_INDEX = 200
+#: Largest weight of a single ``zeta(...)`` or ``G(...; 1)`` in a relation.
+MAX_MZV_WEIGHT = 40
+#: Longest constraint name.
+MAX_NAME_LENGTH = 100
+
+_FAMILY_HINT = "coefficients are written c[i,j], sym[i,j] (i >= j >= 0) or sigma[a,b]"
+_CONSTANT_HINT = "numbers here are rationals, zeta(...), G(...; 1) and pi"
+
+
+def _short(text: str, limit: int = 60) -> str:
+    return text if len(text) <= limit else text[: limit - 3] + "..."
+
+
+# ==========================================================================
+# data model
+# ==========================================================================
+
+
+@dataclass(frozen=True)
+class CoefficientRef:
+    """One coefficient name in a relation, e.g. ``c[2,-1]``.
+
+    ``column`` is the 1-based column of its first character in the relation
+    text, ``placeholder`` the identifier that stands for it in the parse tree.
+    """
+
+    family: str
+    a: int
+    b: int
+    column: int = field(default=0, compare=False)
+    placeholder: str = field(default="", compare=False)
+    text: str = field(default="", compare=False)
+
+    @property
+    def name(self) -> str:
+        """Canonical spelling, ``c[2,-1]``."""
+        return f"{self.family}[{self.a},{self.b}]"
+
+    @property
+    def order(self) -> int:
+        """Total order in s, t: ``i + j`` (``c``, ``sym``) or ``2a + 3b`` (``sigma``)."""
+        return 2 * self.a + 3 * self.b if self.family == "sigma" else self.a + self.b
+
+    def __str__(self) -> str:
+        return self.name
+
+
+Position = Tuple[int, Optional[int]]
+
+
+@dataclass(frozen=True)
+class Constraint:
+    """One ``[[constraint]]`` table after reading.
+
+    Attributes
+    ----------
+    name, relation, kind, note:
+        As in the file (``relation`` with line breaks turned into blanks).
+    tree:
+        The parsed relation (coefficient references are :class:`Sym`
+        placeholders; see :attr:`refs`).
+    refs:
+        The coefficient references, in order of appearance (repeats included).
+    rhs:
+        The exact right-hand side as text, or None; ``rhs_tree`` its parse.
+    rhs_value, abs_tol, rel_tol, uncertainty:
+        The numeric right-hand side and tolerances as exact fractions, or None.
+    source, line:
+        File name and the line of the ``[[constraint]]`` header (or of the
+        ``name`` key).
+    """
+
+    name: str
+    relation: str
+    tree: Node = field(repr=False)
+    refs: Tuple[CoefficientRef, ...]
+    kind: str
+    rhs: Optional[str] = None
+    rhs_tree: Optional[Node] = field(default=None, repr=False)
+    rhs_value: Optional[Fraction] = None
+    abs_tol: Optional[Fraction] = None
+    rel_tol: Optional[Fraction] = None
+    uncertainty: Optional[Fraction] = None
+    note: str = ""
+    source: str = "<constraints>"
+    line: Optional[int] = None
+    _relation_at: Tuple[Position, ...] = field(default=(), repr=False, compare=False)
+    _rhs_at: Tuple[Position, ...] = field(default=(), repr=False, compare=False)
+
+    @property
+    def exact(self) -> bool:
+        """True when the right-hand side is exact (``rhs``)."""
+        return self.rhs_tree is not None
+
+    @property
+    def order(self) -> int:
+        """The order an expansion needs for this constraint (at least 0)."""
+        return max([0] + [r.order for r in self.refs])
+
+    def tolerance(self) -> Optional[Fraction]:
+        """``abs_tol + rel_tol·|rhs_value|`` exactly (``uncertainty`` counts as
+        ``abs_tol``); None for an exact right-hand side."""
+        if self.rhs_value is None:
+            return None
+        absolute = self.abs_tol if self.abs_tol is not None else (self.uncertainty or Fraction(0))
+        return absolute + (self.rel_tol or Fraction(0)) * abs(self.rhs_value)
+
+    def coefficient_names(self) -> Tuple[str, ...]:
+        """Distinct coefficient names in order of first appearance."""
+        seen: Dict[str, None] = {}
+        for r in self.refs:
+            seen.setdefault(r.name, None)
+        return tuple(seen)
+
+    def ref_for(self, placeholder: str, column: Optional[int]) -> Optional[CoefficientRef]:
+        """The reference a placeholder at ``column`` stands for (None if none)."""
+        for r in self.refs:
+            if r.placeholder == placeholder and r.column == column:
+                return r
+        return None
+
+    def position(self, column: Optional[int], where: str = "relation") -> Position:
+        """``(line, column)`` in the file of a column of the relation (or rhs) text."""
+        table = self._relation_at if where == "relation" else self._rhs_at
+        if not table:
+            return (self.line, None)
+        if column is None:
+            return table[0]
+        index = min(max(column, 1), len(table)) - 1
+        return table[index]
+
+    def locate(self, err: LowEnergyError, where: str = "relation") -> LowEnergyError:
+        """Turn a column of the relation (or rhs) text in ``err`` into file line/column."""
+        line, col = self.position(err.column, where)
+        err.source = err.source or self.source
+        err.line = line
+        err.column = col
+        return err
+
+
+@dataclass(frozen=True)
+class ConstraintSet:
+    """A whole constraint file after reading.
+
+    ``provenance`` is the file's ``source`` key; ``source`` is the file name
+    (as for integrands).
+    """
+
+    constraints: Tuple[Constraint, ...]
+    provenance: str
+    title: str = ""
+    notes: str = ""
+    template: bool = False
+    source: str = "<constraints>"
+
+    def __iter__(self) -> Iterator[Constraint]:
+        return iter(self.constraints)
+
+    def __len__(self) -> int:
+        return len(self.constraints)
+
+    @property
+    def names(self) -> Tuple[str, ...]:
+        return tuple(c.name for c in self.constraints)
+
+    def required_order(self) -> int:
+        return required_order(self)
+
+    def __getitem__(self, name: str) -> Constraint:
+        for c in self.constraints:
+            if c.name == name:
+                return c
+        raise KeyError(name)
+
+
+def required_order(constraints) -> int:
+    """The smallest expansion order N that every referenced coefficient needs.
+
+    ``c[i,j]`` and ``sym[i,j]`` need ``N ≥ i + j``, ``sigma[a,b]`` needs
+    ``N ≥ 2a + 3b``; the result is at least 0.  Accepts a
+    :class:`ConstraintSet`, one :class:`Constraint` or an iterable of them.
+    """
+    if isinstance(constraints, Constraint):
+        constraints = (constraints,)
+    return max([0] + [c.order for c in constraints])
+
+
+# ==========================================================================
+# reading
+# ==========================================================================
+
+
+def read_constraints(path) -> ConstraintSet:
+    """Read a constraint file (TOML; see the module docstring).
+
+    Raises only :class:`~lowenergy.errors.LowEnergyError` subclasses:
+    :class:`~lowenergy.errors.InputError` for unreadable files and
+    inconsistent content, :class:`~lowenergy.errors.ParseError` for malformed
+    TOML or relations.
+    """
+    source = os.fspath(path) if isinstance(path, (str, bytes, os.PathLike)) else str(path)
+    if isinstance(source, bytes):
+        source = os.fsdecode(source)
+    try:
+        with open(path, "rb") as handle:
+            raw = handle.read(MAX_FILE_SIZE + 1)
+    except IsADirectoryError:
+        raise InputError("is a directory, not a constraint file", source=source) from None
+    except FileNotFoundError:
+        raise InputError("no such file", source=source, hint="check the file name") from None
+    except (OSError, ValueError, TypeError) as exc:
+        raise InputError(f"cannot read the file: {exc}", source=source) from None
+    return constraints_from_text(raw, source=source)
+
+
+def constraints_from_text(text, source: str = "<constraints>") -> ConstraintSet:
+    """Read a constraint set from TOML text (``str`` or UTF-8 ``bytes``)."""
+    text = _decode(text, source)
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise _toml_error(exc, text, source) from None
+    except RecursionError:
+        raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None
+    layout = _Layout(text)
+    return _Reader(data, layout, source).read()
+
+
+def _decode(text, source: str) -> str:
+    if isinstance(text, (bytes, bytearray)):
+        data = bytes(text)
+        if len(data) > MAX_FILE_SIZE:
+            raise InputError(f"file larger than {MAX_FILE_SIZE} bytes", source=source, hint="split the constraint set")
+        try:
+            return data.decode("utf-8-sig")
+        except UnicodeDecodeError as exc:
+            line = data[: exc.start].count(b"\n") + 1
+            raise ParseError("the file is not valid UTF-8", source=source, line=line, hint="save the file as UTF-8") from None
+    if not isinstance(text, str):
+        raise InputError(f"constraint text must be a string, not {type(text).__name__}", source=source)
+    if len(text) > MAX_FILE_SIZE:
+        raise InputError(f"text longer than {MAX_FILE_SIZE} characters", source=source, hint="split the constraint set")
+    return text[1:] if text.startswith("\ufeff") else text
+
+
+def _toml_error(exc: Exception, text: str, source: str) -> ParseError:
+    message = getattr(exc, "msg", None) or str(exc)
+    line = getattr(exc, "lineno", None)
+    column = getattr(exc, "colno", None)
+    match = re.search(r"\s*\(at line (\d+), column (\d+)\)\s*$", message)
+    if match:
+        line = line or int(match.group(1))
+        column = column or int(match.group(2))
+        message = message[: match.start()]
+    elif re.search(r"\(at end of document\)\s*$", message):
+        message = re.sub(r"\s*\(at end of document\)\s*$", " at the end of the document", message)
+        line = line or max(1, text.count("\n") + (0 if text.endswith("\n") else 1))
+    return ParseError(
+        f"malformed TOML: {message}",
+        source=source,
+        line=line,
+        column=column,
+        hint='a constraint file is TOML: source = "...", then [[constraint]] tables',
+    )
+
+
+def _toml_type(value) -> str:
+    if isinstance(value, bool):
+        return "a boolean"
+    if isinstance(value, int):
+        return "an integer"
+    if isinstance(value, float):
+        return "a number"
+    if isinstance(value, str):
+        return "a string"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, dict):
+        return "a table"
+    return "a date or time"
+
+
+# --------------------------------------------------------------------------
+# where things are in the file (for messages only; tomllib reads the data)
+# --------------------------------------------------------------------------
+
+
+_BARE_KEY = r"[A-Za-z0-9_-]+"
+_QUOTED_KEY = r'"(?:[^"\\\n]|\\.)*"|' + r"'[^'\n]*'"
+_KEY_PART = f"(?:{_BARE_KEY}|{_QUOTED_KEY})"
+_KEY_LINE = re.compile(rf"[ \t]*({_KEY_PART})(?:[ \t]*\.[ \t]*{_KEY_PART})*[ \t]*=[ \t]*")
+_ARRAY_HEADER = re.compile(rf"[ \t]*\[\[[ \t]*({_KEY_PART})[ \t]*\]\]")
+_TABLE_HEADER = re.compile(rf"[ \t]*\[[ \t]*({_KEY_PART})")
+
+
+def _key_name(part: str) -> str:
+    if part[:1] in ("'", '"'):
+        return part[1:-1]
+    return part
+
+
+class _Layout:
+    """Lines of keys and ``[[constraint]]`` headers, and offsets of values.
+
+    ``top[key]`` and ``tables[k][key]`` are ``(line, value offset)``;
+    ``headers[k]`` is the line of the k-th ``[[constraint]]`` header.
+    A best-effort lexer: it skips comments, strings (all four kinds) and
+    nested arrays, so that text inside them is never taken for a key.
+    """
+
+    def __init__(self, text: str) -> None:
+        self.text = text
+        self.top: Dict[str, Tuple[int, int]] = {}
+        self.tables: List[Dict[str, Tuple[int, int]]] = []
+        self.headers: List[int] = []
+        self.other_headers: Dict[str, int] = {}
+        self._starts = [0] + [k + 1 for k, ch in enumerate(text) if ch == "\n"]
+        self._scan()
+
+    def spot(self, offset: int) -> Tuple[int, int]:
+        row = bisect.bisect_right(self._starts, offset) - 1
+        return row + 1, offset - self._starts[row] + 1
+
+    def _scan(self) -> None:
+        text = self.text
+        n = len(text)
+        i = 0
+        line = 1
+        depth = 0
+        context: Optional[Dict[str, Tuple[int, int]]] = self.top
+        line_start = True
+        while i < n:
+            if line_start and depth == 0:
+                line_start = False
+                header = _ARRAY_HEADER.match(text, i)
+                if header:
+                    name = _key_name(header.group(1))
+                    if name == "constraint":
+                        self.headers.append(line)
+                        context = {}
+                        self.tables.append(context)
+                    else:
+                        self.other_headers.setdefault(name, line)
+                        context = None
+                    i = header.end()
+                    continue
+                header = _TABLE_HEADER.match(text, i)
+                if header:
+                    self.other_headers.setdefault(_key_name(header.group(1)), line)
+                    context = None
+                    i = header.end()
+                    depth = 0
+                    # skip the rest of the header line
+                    while i < n and text[i] != "\n":
+                        i += 1
+                    continue
+                key = _KEY_LINE.match(text, i)
+                if key:
+                    if context is not None:
+                        context.setdefault(_key_name(key.group(1)), (line, key.end()))
+                    i = key.end()
+                    continue
+            ch = text[i]
+            if ch == "\n":
+                line += 1
+                line_start = True
+                i += 1
+            elif ch == "#":
+                while i < n and text[i] != "\n":
+                    i += 1
+            elif text.startswith('"""', i) or text.startswith("'''", i):
+                quote = text[i]
+                i += 3
+                while i < n and not text.startswith(quote * 3, i):
+                    if text[i] == "\\" and quote == '"':
+                        i += 1
+                        if i < n and text[i] == "\n":
+                            line += 1
+                    elif text[i] == "\n":
+                        line += 1
+                    i += 1
+                i += 3
+                while i < n and text[i] == quote:
+                    i += 1
+            elif ch in "\"'":
+                i += 1
+                while i < n and text[i] != ch and text[i] != "\n":
+                    if text[i] == "\\" and ch == '"' and i + 1 < n and text[i + 1] != "\n":
+                        i += 1
+                    i += 1
+                if i < n and text[i] == ch:
+                    i += 1
+            elif ch in "[{":
+                depth += 1
+                i += 1
+            elif ch in "]}":
+                depth = max(0, depth - 1)
+                i += 1
+            else:
+                i += 1
+
+    def string_positions(self, offset: Optional[int], value: str) -> Tuple[Position, ...]:
+        """``(line, column)`` of every character of the string value at ``offset``.
+
+        Empty when the value cannot be located exactly.  One extra entry at
+        the end stands for the closing quote.
+        """
+        if offset is None:
+            return ()
+        decoded = _decode_string_at(self.text, offset)
+        if decoded is None or decoded[0] != value:
+            return ()
+        chars, offsets, end = decoded
+        return tuple(self.spot(o) for o in offsets) + (self.spot(end),)
+
+
+_ESCAPES = {"b": "\b", "t": "\t", "n": "\n", "f": "\f", "r": "\r", '"': '"', "\\": "\\"}
+
+
+def _escape(text: str, i: int) -> Optional[Tuple[str, int]]:
+    letter = text[i + 1 : i + 2]
+    if letter in _ESCAPES:
+        return _ESCAPES[letter], i + 2
+    if letter in ("u", "U"):
+        size = 4 if letter == "u" else 8
+        digits = text[i + 2 : i + 2 + size]
+        if len(digits) == size and all(c in "0123456789abcdefABCDEF" for c in digits):
+            code = int(digits, 16)
+            if code <= 0x10FFFF:
+                return chr(code), i + 2 + size
+    return None
+
+
+def _decode_string_at(text: str, start: int) -> Optional[Tuple[str, List[int], int]]:
+    """Decode the TOML string at ``start``: ``(value, source offset per char, offset of the closing quote)``."""
+    n = len(text)
+    out: List[str] = []
+    where: List[int] = []
+    if text.startswith('"""', start) or text.startswith("'''", start):
+        quote = text[start]
+        i = start + 3
+        if text.startswith("\r\n", i):
+            i += 2
+        elif text.startswith("\n", i):
+            i += 1
+        while i < n:
+            if text.startswith(quote * 3, i):
+                extra = 0
+                while extra < 2 and text.startswith(quote * 3, i + 1):
+                    out.append(quote)
+                    where.append(i)
+                    i += 1
+                    extra += 1
+                return "".join(out), where, i
+            ch = text[i]
+            if ch == "\\" and quote == '"':
+                j = i + 1
+                while j < n and text[j] in " \t":
+                    j += 1
+                if j < n and text[j] in "\r\n":
+                    while j < n and text[j] in " \t\r\n":
+                        j += 1
+                    i = j
+                    continue
+                decoded = _escape(text, i)
+                if decoded is None:
+                    return None
+                out.append(decoded[0])
+                where.append(i)
+                i = decoded[1]
+                continue
+            if ch == "\r" and text.startswith("\r\n", i):
+                out.append("\n")
+                where.append(i)
+                i += 2
+                continue
+            out.append(ch)
+            where.append(i)
+            i += 1
+        return None
+    if start < n and text[start] in "\"'":
+        quote = text[start]
+        i = start + 1
+        while i < n and text[i] != "\n":
+            ch = text[i]
+            if ch == quote:
+                return "".join(out), where, i
+            if ch == "\\" and quote == '"':
+                decoded = _escape(text, i)
+                if decoded is None:
+                    return None
+                out.append(decoded[0])
+                where.append(i)
+                i = decoded[1]
+                continue
+            out.append(ch)
+            where.append(i)
+            i += 1
+    return None
+
+
+# --------------------------------------------------------------------------
+# coefficient references
+# --------------------------------------------------------------------------
+
+_DIGITS = frozenset("0123456789")
+_FIRST = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz_")
+_REST = _FIRST | _DIGITS
+_BLANKS = frozenset(" \t")
+_B36 = "0123456789abcdefghijklmnopqrstuvwxyz"
+
+
+def _placeholder(index: int, length: int) -> str:
+    digits = ""
+    while True:
+        index, r = divmod(index, 36)
+        digits = _B36[r] + digits
+        if not index:
+            break
+    name = "_k" + digits
+    return name + "_" * (length - len(name))
+
+
+def _pretokenize(text: str) -> Tuple[str, Tuple[CoefficientRef, ...]]:
+    """Replace every ``family[a,b]`` by a placeholder identifier of the same length.
+
+    Columns in the errors are 1-based columns of ``text``.
+    """
+    out = list(text)
+    refs: List[CoefficientRef] = []
+    n = len(text)
+    i = 0
+    while i < n:
+        ch = text[i]
+        if ch in _DIGITS:
+            while i < n and (text[i] in _DIGITS or text[i] == "."):
+                i += 1
+            continue
+        if ch in _FIRST:
+            j = i
+            while j < n and text[j] in _REST:
+                j += 1
+            k = j
+            while k < n and text[k] in _BLANKS:
+                k += 1
+            if k < n and text[k] == "[":
+                ref, end = _read_ref(text, i, j, k, len(refs))
+                refs.append(ref)
+                out[i:end] = list(ref.placeholder)
+                i = end
+                continue
+            i = j
+            continue
+        if ch == "[":
+            raise ParseError(
+                "unexpected '['",
+                column=i + 1,
+                term="[",
+                hint=_FAMILY_HINT + "; group terms with ( )",
+            )
+        if ch == "]":
+            raise ParseError("unexpected ']'", column=i + 1, term="]", hint="this ']' has no matching '['")
+        i += 1
+    return "".join(out), tuple(refs)
+
+
+def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) -> Tuple[CoefficientRef, int]:
+    n = len(text)
+    family = text[start:name_end]
+    close = text.find("]", bracket)
+    stop = text.find("[", bracket + 1)
+    if close < 0 or (0 <= stop < close):
+        term = _short(text[start : (stop if stop >= 0 else n)].rstrip())
+        raise ParseError(
+            "unclosed '[' in a coefficient reference",
+            column=bracket + 1,
+            term=term,
+            hint="write c[i,j] with two integers, e.g. c[2,0]",
+        )
+    term = text[start : close + 1]
+    if family not in FAMILIES:
+        hint = _FAMILY_HINT
+        close_match = difflib.get_close_matches(family, FAMILIES, n=1, cutoff=0.6)
+        if close_match:
+            hint = f"did you mean {close_match[0]}[...]? " + hint
+        elif family in ("zeta", "G", "pi"):
+            hint = f"MZVs use round parentheses, e.g. zeta(3); {hint}"
+        raise ParseError(f"unknown coefficient family '{_short(family, 30)}'", column=start + 1, term=_short(term), hint=hint)
+    inner = text[bracket + 1 : close]
+    m = re.fullmatch(r"[ \t]*([+-]?)[ \t]*(\d+)[ \t]*,[ \t]*([+-]?)[ \t]*(\d+)[ \t]*", inner)
+    if not m:
+        raise ParseError(
+            f"malformed coefficient reference '{_short(term, 40)}'",
+            column=start + 1,
+            term=_short(term),
+            hint=f"write {family}[i,j] with two integers, e.g. {family}[2,0]",
+        )
+    if len(m.group(2)) > 6 or len(m.group(4)) > 6:
+        raise InputError(
+            f"index too large in {_short(term, 40)}",
+            column=start + 1,
+            term=_short(term),
+            hint=f"indices are at most {MAX_INDEX} in absolute value",
+        )
+    a = int(m.group(2)) * (-1 if m.group(1) == "-" else 1)
+    b = int(m.group(4)) * (-1 if m.group(3) == "-" else 1)
+    if abs(a) > MAX_INDEX or abs(b) > MAX_INDEX:
+        raise InputError(
+            f"index too large in {_short(term, 40)}",
+            column=start + 1,
+            term=_short(term),
+            hint=f"indices are at most {MAX_INDEX} in absolute value",
+        )
+    if family == "sym" and not (a >= b >= 0):
+        hint = f"write sym[{b},{a}]" if b >= a >= 0 else "sym[i,j] needs i >= j >= 0 (contact terms only)"
+        raise InputError(f"invalid symmetric-basis name {term}", column=start + 1, term=term, hint=hint)
+    if family == "sigma" and (a < 0 or b < 0):
+        raise InputError(
+            f"invalid sigma-basis name {term}", column=start + 1, term=term, hint="sigma[a,b] needs a, b >= 0"
+        )
+    end = close + 1
+    ref = CoefficientRef(family, a, b, column=start + 1, placeholder=_placeholder(index, end - start), text=term)
+    return ref, end
+
+
+def _restore(text: Optional[str], refs: Sequence[CoefficientRef]) -> Optional[str]:
+    """Put the original coefficient names back into a message."""
+    if not text:
+        return text
+    for r in sorted(refs, key=lambda r: -len(r.placeholder)):
+        if r.placeholder in text:
+            text = text.replace(r.placeholder, r.text)
+    return text
+
+
+def _parse_with_refs(text: str) -> Tuple[Node, Tuple[CoefficientRef, ...]]:
+    """Pre-tokenize and parse; errors carry columns of ``text``."""
+    replaced, refs = _pretokenize(text)
+    try:
+        tree = parse_expression(replaced)
+    except LowEnergyError as err:
+        err.message = _restore(err.message, refs) or err.message
+        err.args = (err.message,)
+        err.term = _restore(err.term, refs)
+        err.hint = _restore(err.hint, refs)
+        raise
+    return tree, refs
+
+
+# --------------------------------------------------------------------------
+# static checks of a parsed relation
+# --------------------------------------------------------------------------
+
+
+def _subtree_nodes(node: Node) -> Iterator[Node]:
+    stack = [node]
+    while stack:
+        item = stack.pop()
+        yield item
+        stack.extend(_kids(item))
+
+
+def _kids(node: Node) -> Tuple[Node, ...]:
+    if isinstance(node, Call):
+        return tuple(node.letters or ()) + tuple(node.args)
+    for attrs in (("left", "right"), ("base", "exponent"), ("operand",)):
+        if all(hasattr(node, a) for a in attrs):
+            return tuple(getattr(node, a) for a in attrs)
+    return ()
+
+
+def _node_text(node: Node, refs: Sequence[CoefficientRef]) -> str:
+    return _short(_restore(to_text(node), refs) or "")
+
+
+def _validate(tree: Node, refs: Sequence[CoefficientRef], *, allow_refs: bool) -> None:
+    """Static checks; raise with a column of the text.
+
+    Every name must be a placeholder at its own column (when ``allow_refs``)
+    or ``pi``; calls are ``zeta(...)`` and ``G(...; 1)`` with literal
+    indices; exponents and divisors are rational constants.
+    """
+    by_key = {(r.placeholder, r.column): r for r in refs}
+
+    def fail(node: Node, message: str, hint: Optional[str] = None) -> InputError:
+        return InputError(message, column=getattr(node, "col", None), term=_node_text(node, refs), hint=hint)
+
+    for node in _subtree_nodes(tree):
+        if isinstance(node, Sym):
+            if (node.name, node.col) in by_key:
+                if not allow_refs:
+                    raise fail(
+                        node,
+                        "the exact right-hand side may not contain coefficients",
+                        "move coefficients into 'relation'; rhs is a number such as zeta(3) or 0",
+                    )
+                continue
+            if node.name == "pi":
+                continue
+            name = node.name
+            if name in FAMILIES:
+                hint = f"write {name}[i,j] with two integers"
+            elif name in ("s", "t", "u", "x"):
+                hint = "relations are between coefficients: c[i,j] is the coefficient of s^i t^j"
+            else:
+                hint = (_FAMILY_HINT + "; " + _CONSTANT_HINT) if allow_refs else _CONSTANT_HINT
+            raise fail(node, f"unknown name '{_short(name, 30)}'", hint)
+        elif isinstance(node, Call):
+            _validate_call(node, refs, fail)
+        elif isinstance(node, Pow):
+            if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.exponent)):
+                raise fail(node.exponent, "exponents must be rational numbers", "write e.g. c[2,0]^2")
+        elif isinstance(node, Div):
+            if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.right)):
+                raise fail(
+                    node.right,
+                    "division is by rational numbers only",
+                    "relations are polynomials in the coefficients; multiply through instead",
+                )
+
+
+def _validate_call(node: Call, refs, fail) -> None:
+    name = node.name
+    if any(node.name == r.placeholder for r in refs):
+        raise fail(node, "a coefficient cannot be called like a function", "write c[i,j]*(...) for a product")
+    if name == "zeta":
+        if node.letters is not None:
+            raise fail(node, "zeta takes indices only, without ';'", "write zeta(3,5)")
+        if not node.args:
+            raise fail(node, "zeta needs at least one index", "write zeta(3)")
+        indices = []
+        for a in node.args:
+            if not isinstance(a, Num) or a.value.denominator != 1 or a.value < 1:
+                raise fail(a, "MZV indices must be positive integers", "write zeta(3,5)")
+            indices.append(int(a.value))
+        if indices[0] == 1:
+            raise fail(node, "zeta with first index 1 diverges", "the first index must be at least 2")
+        if sum(indices) > MAX_MZV_WEIGHT:
+            raise fail(node, f"MZV of weight {sum(indices)} is too heavy", f"weights up to {MAX_MZV_WEIGHT} are accepted")
+        return
+    if name == "G":
+        if node.letters is None or len(node.args) != 1:
+            raise fail(node, "G needs letters and the argument 1", "write G(0,1,1; 1)")
+        arg = node.args[0]
+        if not (isinstance(arg, Num) and arg.value == 1):
+            raise fail(arg, "only G(...; 1) is a number here", "write G(0,1; 1)")
+        for a in node.letters:
+            if not isinstance(a, Num) or a.value not in (0, 1):
+                raise fail(a, "letters of G must be 0 or 1")
+        if len(node.letters) > MAX_MZV_WEIGHT:
+            raise fail(node, "G word too long", f"words up to length {MAX_MZV_WEIGHT} are accepted")
+        return
+    if name in FAMILIES:
+        raise fail(node, f"unknown function '{name}'", f"coefficients use square brackets: {name}[i,j]")
+    raise fail(node, f"unknown function '{_short(name, 30)}'", "known here: zeta(...), G(...; 1)")
+
+
+# --------------------------------------------------------------------------
+# the reader proper
+# --------------------------------------------------------------------------
+
+_DECIMAL = re.compile(r"[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?\Z")
+
+
+class _Reader:
+    def __init__(self, data: dict, layout: _Layout, source: str) -> None:
+        self.data = data
+        self.layout = layout
+        self.source = source
+
+    # -- helpers -----------------------------------------------------------
+
+    def top_line(self, key: str) -> Optional[int]:
+        spot = self.layout.top.get(key)
+        return spot[0] if spot else self.layout.other_headers.get(key)
+
+    def table_line(self, index: int, key: Optional[str] = None) -> Optional[int]:
+        if index < len(self.layout.tables):
+            if key is not None and key in self.layout.tables[index]:
+                return self.layout.tables[index][key][0]
+            return self.layout.headers[index]
+        return self.top_line("constraint")
+
+    def error(self, cls, message: str, line: Optional[int], term: Optional[str] = None, hint=None, column=None):
+        return cls(message, source=self.source, line=line, column=column, term=term, hint=hint)
+
+    def unknown_key(self, key: str, allowed: Sequence[str], line: Optional[int], where: str) -> InputError:
+        close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
+        hint = f"did you mean '{close[0]}'? " if close else ""
+        hint += "allowed keys: " + ", ".join(allowed)
+        return self.error(InputError, f"unknown key '{_short(key, 40)}'{where}", line, _short(key, 40), hint)
+
+    # -- top level ---------------------------------------------------------
+
+    def read(self) -> ConstraintSet:
+        data = self.data
+        for key in data:
+            if key not in TOP_LEVEL_KEYS:
+                extra = ""
+                if key in CONSTRAINT_KEYS:
+                    extra = "; constraint keys belong in a [[constraint]] table"
+                err = self.unknown_key(key, TOP_LEVEL_KEYS, self.top_line(key), "")
+                err.hint = (err.hint or "") + extra
+                raise err
+        if "source" not in data:
+            raise self.error(
+                InputError,
+                "missing required key 'source'",
+                1,
+                hint='every constraint set names where its numbers come from: source = "paper, equation"',
+            )
+        provenance = self.string_top("source")
+        if not provenance.strip():
+            raise self.error(InputError, "'source' is empty", self.top_line("source"), "source",
+                             hint="name the publication, handbook equation or derivation")
+        title = self.string_top("title") if "title" in data else ""
+        notes = self.string_top("notes") if "notes" in data else ""
+        template = data.get("template", False)
+        if not isinstance(template, bool):
+            raise self.error(InputError, f"'template' must be true or false, not {_toml_type(template)}",
+                             self.top_line("template"), "template", hint="write template = true")
+        if "constraint" not in data:
+            raise self.error(InputError, "no constraints: missing [[constraint]] tables", None,
+                             hint="add [[constraint]] tables with name, relation, kind and rhs")
+        tables = data["constraint"]
+        if isinstance(tables, dict):
+            raise self.error(InputError, "'constraint' must be an array of tables", self.top_line("constraint"),
+                             "constraint", hint="write each constraint under [[constraint]] (double brackets)")
+        if not isinstance(tables, list) or not tables:
+            raise self.error(InputError, "'constraint' must be a non-empty array of tables", self.top_line("constraint"),
+                             "constraint", hint="write each constraint under [[constraint]]")
+        if len(tables) > MAX_CONSTRAINTS:
+            raise self.error(InputError, f"more than {MAX_CONSTRAINTS} constraints", None,
+                             hint="split the constraint set")
+        constraints: List[Constraint] = []
+        seen: Dict[str, Optional[int]] = {}
+        for index, table in enumerate(tables):
+            if not isinstance(table, dict):
+                raise self.error(InputError, f"constraint {index + 1} is {_toml_type(table)}, not a table",
+                                 self.top_line("constraint"), "constraint", hint="write each constraint under [[constraint]]")
+            c = self.constraint(index, table)
+            if c.name in seen:
+                where = f" (first at line {seen[c.name]})" if seen[c.name] else ""
+                raise self.error(InputError, f"duplicate constraint name '{_short(c.name, 40)}'{where}",
+                                 self.table_line(index, "name"), _short(c.name, 40), hint="names must be unique")
+            seen[c.name] = self.table_line(index, "name")
+            constraints.append(c)
+        return ConstraintSet(tuple(constraints), provenance, title, notes, template, self.source)
+
+    def string_top(self, key: str) -> str:
+        value = self.data[key]
+        if not isinstance(value, str):
+            raise self.error(InputError, f"'{key}' must be a string, not {_toml_type(value)}", self.top_line(key), key,
+                             hint=f'write {key} = "..."')
+        return value
+
+    # -- one constraint ----------------------------------------------------
+
+    def constraint(self, index: int, table: dict) -> Constraint:
+        label = f" in constraint {index + 1}"
+        line = self.table_line(index)
+        for key in table:
+            if key not in CONSTRAINT_KEYS:
+                raise self.unknown_key(key, CONSTRAINT_KEYS, self.table_line(index, key), label)
+
+        def string(key: str, required: bool) -> Optional[str]:
+            if key not in table:
+                if required:
+                    raise self.error(InputError, f"missing required key '{key}'{label}", line, key,
+                                     hint=_REQUIRED_HINTS[key])
+                return None
+            value = table[key]
+            if not isinstance(value, str):
+                raise self.error(InputError, f"'{key}' must be a string, not {_toml_type(value)}{label}",
+                                 self.table_line(index, key), key, hint=f'write {key} = "..."')
+            return value
+
+        name = string("name", True)
+        assert name is not None
+        label = f" in constraint '{_short(name, 40)}'"
+        if not name.strip():
+            raise self.error(InputError, f"empty constraint name (constraint {index + 1})", self.table_line(index, "name"),
+                             "name", hint="give every constraint a short unique name")
+        if len(name) > MAX_NAME_LENGTH or any(not ch.isprintable() for ch in name):
+            raise self.error(InputError, f"invalid constraint name{label}", self.table_line(index, "name"),
+                             _short(name, 40), hint=f"at most {MAX_NAME_LENGTH} printable characters")
+        relation = string("relation", True)
+        kind = string("kind", True)
+        assert relation is not None and kind is not None
+        note = string("note", False) or ""
+        kind_line = self.table_line(index, "kind")
+        if kind.strip() not in KINDS:
+            hints = {"==": "write kind = \"=\"", "<": "strict inequalities are not supported; use \"<=\"",
+                     ">": "strict inequalities are not supported; use \">=\"", "\u2264": "write \"<=\"",
+                     "\u2265": "write \">=\"", "=<": "write \"<=\"", "=>": "write \">=\""}
+            raise self.error(InputError, f"unknown kind '{_short(kind, 20)}'{label}", kind_line, _short(kind, 20),
+                             hint=hints.get(kind.strip(), "kind is one of \"=\", \"<=\", \">=\""))
+        kind = kind.strip()
+
+        # -- the relation --
+        rel_line, rel_offset = self.table_spot(index, "relation")
+        rel_text = relation.replace("\r", " ").replace("\n", " ")
+        rel_at = self.layout.string_positions(rel_offset, relation) if rel_offset is not None else ()
+        if not rel_at and rel_line is not None:
+            rel_at = ()
+        for bad in ("<=", ">=", "==", "="):
+            if bad in rel_text:
+                col = rel_text.index(bad) + 1
+                err = ParseError(
+                    f"the relation contains '{bad}'",
+                    column=col,
+                    term=bad,
+                    hint="write only the left-hand side in 'relation'; put the comparison in 'kind' "
+                    "and the right-hand side in 'rhs' or 'rhs_value'",
+                )
+                raise self.place(err, rel_at, rel_line, label)
+        try:
+            tree, refs = _parse_with_refs(rel_text)
+            _validate(tree, refs, allow_refs=True)
+        except LowEnergyError as err:
+            raise self.place(err, rel_at, rel_line, label) from None
+
+        # -- right-hand side --
+        has_rhs = "rhs" in table
+        has_value = "rhs_value" in table
+        tol_keys = [k for k in ("abs_tol", "rel_tol", "uncertainty") if k in table]
+        if has_rhs and has_value:
+            raise self.error(InputError, f"both 'rhs' and 'rhs_value' are given{label}", self.table_line(index, "rhs_value"),
+                             "rhs_value", hint="give either an exact rhs or a numeric rhs_value with a tolerance")
+        if not has_rhs and not has_value:
+            raise self.error(InputError, f"missing right-hand side{label}", line, name,
+                             hint='add rhs = "zeta(3)" (exact) or rhs_value = 1.2 with abs_tol/rel_tol')
+        rhs_text = rhs_tree = None
+        rhs_at: Tuple[Position, ...] = ()
+        rhs_value = abs_tol = rel_tol = uncertainty = None
+        if has_rhs:
+            if tol_keys:
+                raise self.error(InputError, f"'{tol_keys[0]}' given with an exact rhs{label}",
+                                 self.table_line(index, tol_keys[0]), tol_keys[0],
+                                 hint="tolerances belong to a numeric rhs_value; an exact rhs is compared exactly")
+            value = table["rhs"]
+            rhs_line, rhs_offset = self.table_spot(index, "rhs")
+            if isinstance(value, bool) or not isinstance(value, (str, int)):
+                hint = 'write the exact value as a string, e.g. rhs = "zeta(3)"'
+                if isinstance(value, float):
+                    hint = "a decimal number is not exact: use rhs_value with abs_tol/rel_tol, or an exact string such as \"1/4\""
+                raise self.error(InputError, f"'rhs' must be a string or an integer, not {_toml_type(value)}{label}",
+                                 rhs_line, "rhs", hint=hint)
+            if isinstance(value, int):
+                rhs_text = str(value)
+            else:
+                rhs_text = value.replace("\r", " ").replace("\n", " ")
+                rhs_at = self.layout.string_positions(rhs_offset, value) if rhs_offset is not None else ()
+            if isinstance(value, int) and abs(value) > 10**1000:
+                raise self.error(InputError, f"'rhs' is too large{label}", rhs_line, "rhs")
+            try:
+                rhs_tree, rhs_refs = _parse_with_refs(rhs_text)
+                _validate(rhs_tree, rhs_refs, allow_refs=False)
+            except LowEnergyError as err:
+                raise self.place(err, rhs_at, rhs_line, label, what="rhs") from None
+        else:
+            rhs_value = self.number(index, "rhs_value", table["rhs_value"], label, signed=True)
+            if not tol_keys:
+                raise self.error(InputError, f"'rhs_value' needs a tolerance{label}", self.table_line(index, "rhs_value"),
+                                 "rhs_value", hint="add abs_tol, rel_tol or uncertainty")
+            if "abs_tol" in table and "uncertainty" in table:
+                raise self.error(InputError, f"both 'abs_tol' and 'uncertainty' are given{label}",
+                                 self.table_line(index, "uncertainty"), "uncertainty",
+                                 hint="uncertainty is an absolute tolerance: keep one of the two")
+            if "abs_tol" in table:
+                abs_tol = self.number(index, "abs_tol", table["abs_tol"], label)
+            if "rel_tol" in table:
+                rel_tol = self.number(index, "rel_tol", table["rel_tol"], label)
+            if "uncertainty" in table:
+                uncertainty = self.number(index, "uncertainty", table["uncertainty"], label)
+        return Constraint(
+            name=name,
+            relation=rel_text,
+            tree=tree,
+            refs=refs,
+            kind=kind,
+            rhs=rhs_text,
+            rhs_tree=rhs_tree,
+            rhs_value=rhs_value,
+            abs_tol=abs_tol,
+            rel_tol=rel_tol,
+            uncertainty=uncertainty,
+            note=note,
+            source=self.source,
+            line=line,
+            _relation_at=rel_at or ((rel_line, None),),
+            _rhs_at=rhs_at or ((self.table_spot(index, "rhs")[0] or line, None),),
+        )
+
+    def table_spot(self, index: int, key: str) -> Tuple[Optional[int], Optional[int]]:
+        if index < len(self.layout.tables) and key in self.layout.tables[index]:
+            return self.layout.tables[index][key]
+        return self.table_line(index), None
+
+    def place(self, err: LowEnergyError, positions, line, label: str, what: str = "relation") -> LowEnergyError:
+        column = err.column
+        if positions:
+            index = min(max(column or 1, 1), len(positions)) - 1
+            err.line, err.column = positions[index]
+        else:
+            err.line, err.column = line, None
+        err.source = self.source
+        of = label.replace(" in constraint", " of constraint")
+        suffix = f" (in the {what}{of})"
+        if column is not None and not positions:
+            suffix = f" (column {column} of the {what}{of})"
+        err.message = err.message + suffix
+        err.args = (err.message,)
+        return err
+
+    def number(self, index: int, key: str, value, label: str, signed: bool = False) -> Fraction:
+        line = self.table_line(index, key)
+        q: Optional[Fraction] = None
+        if isinstance(value, bool):
+            q = None
+        elif isinstance(value, int):
+            if abs(value) <= 10**1000:
+                q = Fraction(value)
+        elif isinstance(value, float):
+            if math.isfinite(value):
+                q = Fraction(Decimal(repr(value)))
+            else:
+                raise self.error(InputError, f"'{key}' must be finite{label}", line, key, hint="write an ordinary number")
+        elif isinstance(value, str):
+            text = value.strip().replace("_", "")
+            if len(text) <= 1000 and _DECIMAL.match(text):
+                try:
+                    dec = Decimal(text)
+                except InvalidOperation:  # pragma: no cover - the regex only admits valid decimals
+                    dec = None
+                if dec is not None and abs(dec.as_tuple().exponent) <= 1000:
+                    q = Fraction(dec)
+        if q is None:
+            raise self.error(
+                InputError,
+                f"'{key}' must be a number, not {_toml_type(value) if not isinstance(value, str) else repr(_short(value, 30))}{label}",
+                line,
+                key,
+                hint=f"write {key} = 1.5e-8 or a decimal string such as \"1.6449340668482264365\"",
+            )
+        if not signed and q < 0:
+            raise self.error(InputError, f"'{key}' must not be negative{label}", line, key, hint="tolerances are >= 0")
+        return q
+
+
+_REQUIRED_HINTS = {
+    "name": 'add name = "..." (unique within the file)',
+    "relation": 'add relation = "c[2,0] - c[0,2]" (coefficient names c[i,j], sym[i,j], sigma[a,b])',
+    "kind": 'add kind = "=" (or "<=", ">=")',
+}
