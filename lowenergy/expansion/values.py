@@ -194,7 +194,8 @@ class ModularWordValues:
         rows = None
         if path.exists():
             try:
-                rows = np.load(path, allow_pickle=False).astype(np.int64)
+                # memory-mapped: only the rows an expansion touches are read
+                rows = np.load(path, mmap_mode="r", allow_pickle=False)
             except (OSError, ValueError):
                 rows = None
             if rows is not None and rows.shape != (1 << self.weight, len(self.basis)):
@@ -226,7 +227,7 @@ class ModularWordValues:
         residues = []
         previous = None
         for count, p in enumerate(SMALL_PRIMES, start=1):
-            vals = self._rows(p)[rows]
+            vals = np.asarray(self._rows(p)[rows], dtype=np.int64)
             m = np.array([c % p for c in mults], dtype=np.int64)
             acc = np.zeros(vals.shape[1], dtype=np.int64)
             for start in range(0, len(m), 1024):  # keep partial sums below 2^63
