@@ -148,6 +148,218 @@ def tables_info() -> None:
         typer.echo(f"weight {w:2d}: dimension {store.dimension(w):3d}  new generators: {gens or '-'}{timing}")
 
 
+def _parse_point(text: str) -> dict:
+    """``s=-0.1,t=1/20,a=2`` -> {name: Fraction}; safe (Fraction parsing only)."""
+    from fractions import Fraction
+
+    from .errors import InputError
+
+    point = {}
+    for part in text.split(","):
+        if not part.strip():
+            continue
+        if "=" not in part:
+            raise InputError(f"expected name=value in --at, got {part.strip()!r}", hint="write --at s=-0.1,t=-0.05")
+        name, value = (x.strip() for x in part.split("=", 1))
+        try:
+            point[name] = Fraction(value)
+        except (ValueError, ZeroDivisionError):
+            raise InputError(f"not a rational or decimal number: {value!r}", term=part.strip()) from None
+    if not point:
+        raise InputError("empty --at", hint="write --at s=-0.1,t=-0.05")
+    return point
+
+
+def _basis_spec(basis: str, user_basis: list):
+    from .errors import InputError
+
+    if user_basis:
+        pairs = []
+        for item in user_basis:
+            if "=" not in item:
+                raise InputError(f"--user-basis expects NAME=POLYNOMIAL, got {item!r}", hint="e.g. --user-basis 'A=s^2+t^2'")
+            name, poly = item.split("=", 1)
+            pairs.append((name.strip(), poly.strip()))
+        return pairs
+    if basis not in ("monomial", "symmetric", "sigma"):
+        raise InputError(f"unknown basis {basis!r}", hint="use monomial, symmetric, sigma or --user-basis NAME=POLY")
+    return basis
+
+
+def _expand_with_progress(integrand, order: int):
+    from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
+
+    from .expansion.engine import expand
+
+    n = max(len(integrand.terms), 1)
+    with Progress(
+        TextColumn("[bold]expanding[/bold]"), BarColumn(), TextColumn("{task.description}"),
+        TimeElapsedColumn(), transient=True, console=_stderr_console(),
+    ) as bar:
+        task = bar.add_task("", total=n)
+
+        def progress(msg: str) -> None:
+            bar.update(task, advance=1, description=msg)
+
+        return expand(integrand, order, progress=progress)
+
+
+def _stderr_console():
+    from rich.console import Console
+
+    return Console(stderr=True)
+
+
+@app.command()
+@user_errors
+def expand(
+    file: str = typer.Argument(..., help="integrand file (TOML)"),
+    order: int = typer.Option(..., "--order", help="keep every s^i t^j with i + j <= ORDER"),
+    csv: Optional[str] = typer.Option(None, "--csv", help="write the table as CSV (lossless)"),
+    latex: Optional[str] = typer.Option(None, "--latex", help="write a LaTeX tabular"),
+    as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
+    basis: str = typer.Option("monomial", "--basis", help="monomial | symmetric | sigma"),
+    user_basis: Optional[list[str]] = typer.Option(None, "--user-basis", help="NAME=POLY in s,t (repeat)"),
+    digits: int = typer.Option(20, "--digits", help="digits of the numeric column"),
+    pi: bool = typer.Option(False, "--pi", help="LaTeX/terminal: powers of ζ(2) as powers of π"),
+) -> None:
+    """Expand an integrand at low energy into exact Wilson coefficients."""
+    from .errors import InputError
+    from .integrand.reader import read_integrand
+    from .tables import to_csv_text, to_json_dict, to_latex, to_terminal, write_csv, write_latex
+
+    _check_digits(digits)
+    if order < 0 or order > 60:
+        raise InputError(f"--order must be between 0 and 60, got {order}")
+    spec = _basis_spec(basis, user_basis or [])
+    integrand = read_integrand(file)
+    expansion = _expand_with_progress(integrand, order)
+    # build every output in memory first: a failure writes no file
+    outputs = []
+    if csv:
+        to_csv_text(expansion, basis=spec, digits=digits)
+        outputs.append(("csv", csv))
+    if latex:
+        to_latex(expansion, basis=spec, digits=digits, pi=pi)
+        outputs.append(("latex", latex))
+    if as_json:
+        typer.echo(json.dumps(to_json_dict(expansion, digits=digits, basis=spec)))
+    else:
+        from rich.console import Console
+
+        Console().print(to_terminal(expansion, basis=spec, digits=digits, pi=pi))
+    for kind, path in outputs:
+        if kind == "csv":
+            write_csv(expansion, path, basis=spec, digits=digits)
+        else:
+            write_latex(expansion, path, basis=spec, digits=digits, pi=pi)
+        typer.echo(f"wrote {path}", err=True)
+
+
+@app.command()
+@user_errors
+def verify(
+    file: str = typer.Argument(..., help="integrand file (TOML)"),
+    at: str = typer.Option(..., "--at", help="the point, e.g. s=-0.1,t=-0.07 (and parameters)"),
+    order: int = typer.Option(8, "--order", help="order of the series compared"),
+    digits: int = typer.Option(30, "--digits", help="working digits of the quadrature"),
+) -> None:
+    """Compare the truncated series with direct (continued) quadrature at a point."""
+    from .errors import InputError
+    from .expansion.verify import verify as run_verify
+    from .integrand.reader import read_integrand
+
+    _check_digits(digits)
+    if order < 0 or order > 60:
+        raise InputError(f"--order must be between 0 and 60, got {order}")
+    point = _parse_point(at)
+    integrand = read_integrand(file)
+    expansion = _expand_with_progress(integrand, order)
+    report = run_verify(integrand, expansion, point, digits=digits)
+    typer.echo(report.summary())
+    if not report.consistent:
+        raise typer.Exit(1)
+
+
+def _load_candidate(source: str, constraints):
+    from pathlib import Path
+
+    from .constraints import required_order
+    from .tables import read_csv
+
+    if Path(source).suffix.lower() == ".csv":
+        return read_csv(source)
+    from .integrand.reader import read_integrand
+
+    integrand = read_integrand(source)
+    return _expand_with_progress(integrand, max(required_order(constraints), 0))
+
+
+@app.command()
+@user_errors
+def check(
+    source: str = typer.Argument(..., help="integrand file (TOML) or coefficient table (CSV)"),
+    constraints_file: str = typer.Argument(..., metavar="CONSTRAINTS", help="constraint file (TOML)"),
+    as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
+    digits: int = typer.Option(30, "--digits", help="digits of numeric comparisons"),
+    verbose: bool = typer.Option(False, "--verbose", help="show left and right sides in full"),
+) -> None:
+    """Check coefficients against a constraint set (exit 0 all pass, 1 any fails)."""
+    from .constraints import check as run_check
+    from .constraints import read_constraints
+
+    _check_digits(digits)
+    cs = read_constraints(constraints_file)
+    candidate = _load_candidate(source, cs)
+    report = run_check(candidate, cs, digits=digits)
+    if as_json:
+        typer.echo(json.dumps(report.to_dict()))
+    else:
+        typer.echo(report.to_text(verbose=verbose))
+    if not report.ok:
+        raise typer.Exit(1)
+
+
+@app.command()
+@user_errors
+def fix(
+    integrand_file: str = typer.Argument(..., metavar="INTEGRAND", help="integrand file with free parameters"),
+    constraints_file: str = typer.Argument(..., metavar="CONSTRAINTS", help="constraint file (TOML)"),
+    write: Optional[str] = typer.Option(None, "--write", help="write the fixed integrand file here"),
+    as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
+) -> None:
+    """Fix the free rational parameters of an integrand from exact constraints."""
+    from pathlib import Path
+
+    from .constraints import fix as run_fix
+    from .constraints import read_constraints, required_order, write_fixed_integrand
+    from .errors import InputError
+    from .integrand.reader import read_integrand
+
+    cs = read_constraints(constraints_file)
+    integrand = read_integrand(integrand_file)
+    if not integrand.parameters:
+        raise InputError(f"{integrand_file} has no free parameters to fix", hint="declare them with parameters = [...]")
+    expansion = _expand_with_progress(integrand, max(required_order(cs), 0))
+    report = run_fix(expansion, cs)
+    text = None
+    if write:
+        if report.status == "inconsistent":
+            raise InputError("the constraints are inconsistent; no fixed integrand written")
+        text = write_fixed_integrand(Path(integrand_file).read_text(encoding="utf-8"), report, source=integrand_file)
+    if as_json:
+        typer.echo(json.dumps(report.to_dict()))
+    else:
+        typer.echo(report.to_text())
+    if write and text is not None:
+        from .tables.export import _atomic_write
+
+        _atomic_write(write, text)
+        typer.echo(f"wrote {write}", err=True)
+    if report.status == "inconsistent":
+        raise typer.Exit(1)
+
+
 @app.command()
 @user_errors
 def demo() -> None:

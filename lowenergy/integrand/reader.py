@@ -1,0 +1,1392 @@
+"""The safe reader of integrand files.
+
+An integrand file is a small TOML document; the smallest valid one is::
+
+    integrand = "x^(-s-1)*(1-x)^(-t-1)"
+
+Keys (exactly these; anything else is an :class:`~lowenergy.errors.InputError`
+naming the key, with a did-you-mean hint):
+
+``integrand`` (string, required)
+    The integrand, in the expression grammar of :mod:`lowenergy.parse`.  It
+    may be a multi-line string (``\"\"\"...\"\"\"``): line breaks inside it are
+    blanks, and error messages still point at the line and column in the file.
+``title``, ``notes``, ``provenance`` (strings)
+    Free text.
+``variables`` (list of two distinct names, default ``["s", "t"]``)
+    The two expansion variables.
+``integration_variable`` (name, default ``"x"``)
+``parameters`` (list of distinct names, default ``[]``)
+    Free rational parameters; they may appear polynomially.
+
+Names are identifiers (letters, digits, ``_``; not starting with a digit),
+pairwise distinct and none of the reserved names ``zeta pi G Li log``.
+
+What an integrand may contain (``x``, ``s``, ``t`` stand for the names chosen
+in the file):
+
+* rationals and decimals, ``+ - * /  ^`` and parentheses; ``s``, ``t`` and the
+  parameters polynomially (division only by non-zero rationals, and by the
+  factors below);
+* MZVs: ``zeta(n1, ..., nk)`` (convergent, ``n1 ≥ 2``), ``G(a1, ..., an; 1)``
+  (shuffle-regularized) and ``pi`` in even total powers per term;
+* the factors ``x^(e)`` and ``(1-x)^(e)`` where ``e`` is an integer plus a
+  rational multiple of *one* expansion variable (``x^(-s-1)``, ``x^(2*s-1)``,
+  ``(1-x)^(-t)``, ``x^2``, ``x^(-1)``); bare ``x`` and ``(1-x)``; after
+  multiplying out, each exponent may still contain only one of ``s``, ``t``
+  (``x^s*x^t`` is refused);
+* ``log(x)``, ``log(1-x)``, ``Li(n, x)``, ``Li(n, 1-x)`` (integer ``n ≥ 1``),
+  ``G(a1, ..., an; x)`` and ``G(a1, ..., an; 1-x)`` (letters 0 and 1);
+* products and non-negative integer powers of all these; products of sums
+  are expanded.
+
+``x`` may appear nowhere else: not in exponents, not in other functions
+(``sin(x)``, ``log(2*x)``), not as a non-integer power (``x^(1/2)``), and a
+bare ``x`` (or ``-x``) may not be an operand of ``+`` or ``-`` except in
+``1-x`` (also written ``-x+1``): ``x+1``, ``1+x``, ``x-1`` and ``(1+x)^2``
+are refused, since a binomial such as ``1+x`` (letter −1) is outside the
+alphabet {0, 1}.  A polynomial in ``x`` can still be written with explicit
+products or powers, ``1 + 2*x + x^2`` or ``1 + x^1``.
+
+The exponents of ``x`` and of ``1-x`` may use different variables or the
+same one (``x^(-s-1)*(1-x)^(-s-1)``, ``(x*(1-x))^(-s)`` and ``x^(-t)`` are
+fine).  Division by a non-zero rational times ``x^a (1-x)^b`` is allowed
+(``x^(-s)/x``); division by anything containing ``s``, ``t``, a parameter,
+an MZV, a function or a sum is refused.
+
+Conversions (all exact): ``log(x) = G(0; x)``, ``log(1-x) = G(1; x)``,
+``Li_n(x) = -G(0^(n-1), 1; x)``; products of G-words are shuffled into single
+words; ``G(w; 1-x)`` is rewritten in ``G(u; x)`` by
+:func:`lowenergy.integrand.transform.g_of_one_minus_x`.
+
+Hard limits (:class:`~lowenergy.errors.InputError`): integer exponents,
+exponent shifts and the coefficient of ``s`` or ``t`` in an exponent up to
+:data:`MAX_EXPONENT` in absolute value, at most
+:data:`MAX_TERMS` terms in any intermediate or final result, words of length
+at most :data:`MAX_WORD_LENGTH`, files of at most :data:`MAX_FILE_SIZE` bytes, and
+at most :data:`MAX_WORK` multiplications of terms while expanding one integrand.
+
+Nothing is evaluated as Python code: TOML is read by :mod:`tomllib`, the
+expression by the hand-written parser, and the tree is walked iteratively.
+
+Examples
+--------
+>>> itg = integrand_from_text('integrand = "x^(-s-1)*(1-x)^(-t-1)"')
+>>> [(t.x_exp, t.y_exp, t.word) for t in itg.terms]   # doctest: +NORMALIZE_WHITESPACE
+[(LinearExponent(shift=-1, coeff=Fraction(-1, 1), var=0),
+  LinearExponent(shift=-1, coeff=Fraction(-1, 1), var=1), ())]
+>>> terms = terms_from_expression("log(x)^2/2 - s*x")
+>>> [(t.x_exp.shift, t.word, sorted(t.coefficient)) for t in terms]
+[(0, (0, 0), [(0, 0)]), (1, (), [(1, 0)])]
+"""
+
+from __future__ import annotations
+
+import bisect
+import difflib
+import os
+import re
+import sys
+from fractions import Fraction
+from math import comb
+from typing import Dict, List, Optional, Sequence, Tuple
+
+from ..errors import InputError, LowEnergyError, ParseError, RegularizationError
+from ..words import shuffle
+from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
+from ..zeta.element import MZV, g_value, zeta
+from ..zeta.table import TableStore, default_store
+from .model import Integrand, LinearExponent, Term
+from .transform import g_of_one_minus_x, require_weight
+
+if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
+
+__all__ = [
+    "read_integrand",
+    "integrand_from_text",
+    "terms_from_expression",
+    "ALLOWED_KEYS",
+    "RESERVED_NAMES",
+    "MAX_EXPONENT",
+    "MAX_TERMS",
+    "MAX_WORD_LENGTH",
+    "MAX_FILE_SIZE",
+    "MAX_WORK",
+]
+
+#: The keys an integrand file may have.
+ALLOWED_KEYS = (
+    "integrand",
+    "title",
+    "variables",
+    "integration_variable",
+    "parameters",
+    "notes",
+    "provenance",
+)
+#: Names that may not be used for variables or parameters.
+RESERVED_NAMES = frozenset({"zeta", "pi", "G", "Li", "log"})
+#: Largest absolute value of an integer power, of the integer part of an
+#: exponent of x or 1-x, and of the coefficient of s or t in such an exponent.
+MAX_EXPONENT = 64
+#: Most terms (sum over terms of the coefficient monomials) anywhere.
+MAX_TERMS = 200_000
+#: Longest word of a G-function.
+MAX_WORD_LENGTH = 30
+#: Largest integrand file, in bytes.
+MAX_FILE_SIZE = 1_000_000
+#: Most multiplications of terms while expanding one integrand.
+MAX_WORK = 1_000_000
+
+_TEXT_LIMIT = 60
+_IDENTIFIER = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+_HINT_EXAMPLE = 'integrand = "x^(-s-1)*(1-x)^(-t-1)"'
+
+
+def _short(text: str, limit: int = _TEXT_LIMIT) -> str:
+    return text if len(text) <= limit else text[: limit - 3] + "..."
+
+
+def _node_text(node: Node) -> str:
+    return _short(to_text(node))
+
+
+# ==========================================================================
+# public entry points
+# ==========================================================================
+
+
+def read_integrand(path, *, store: TableStore | None = None) -> Integrand:
+    """Read an integrand file (TOML; see the module docstring).
+
+    Raises only subclasses of :class:`~lowenergy.errors.LowEnergyError`:
+    :class:`~lowenergy.errors.InputError` for unreadable files, unknown keys,
+    wrong types and unsupported integrands, :class:`~lowenergy.errors.ParseError`
+    for malformed TOML or expressions,
+    :class:`~lowenergy.errors.RegularizationError` for divergent MZVs and
+    :class:`~lowenergy.errors.TableError` when the MZV tables are too small.
+    """
+    source = os.fspath(path) if isinstance(path, (str, bytes, os.PathLike)) else str(path)
+    if isinstance(source, bytes):
+        source = os.fsdecode(source)
+    try:
+        with open(path, "rb") as handle:
+            raw = handle.read(MAX_FILE_SIZE + 1)
+    except IsADirectoryError:
+        raise InputError("is a directory, not an integrand file", source=source) from None
+    except FileNotFoundError:
+        raise InputError("no such file", source=source, hint="check the file name") from None
+    except (OSError, ValueError, TypeError) as exc:
+        raise InputError(f"cannot read the file: {exc}", source=source) from None
+    return integrand_from_text(raw, source=source, store=store)
+
+
+def integrand_from_text(
+    toml_text, source: str = "<string>", *, store: TableStore | None = None
+) -> Integrand:
+    """Read an integrand from TOML text (``str``, or UTF-8 ``bytes``)."""
+    text = _decode(toml_text, source)
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise _toml_error(exc, text, source) from None
+    except RecursionError:
+        raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None
+    layout = _scan_toml(text)
+
+    def where(key: str) -> Optional[int]:
+        return layout.lines.get(key)
+
+    for key in data:
+        if key not in ALLOWED_KEYS:
+            close = difflib.get_close_matches(key, ALLOWED_KEYS, n=1, cutoff=0.6)
+            hint = f"did you mean '{close[0]}'? " if close else ""
+            hint += "allowed keys: " + ", ".join(ALLOWED_KEYS)
+            raise InputError(
+                f"unknown key '{_short(key, 40)}'", source=source, line=where(key), term=_short(key, 40), hint=hint
+            )
+    if "integrand" not in data:
+        raise InputError(
+            "missing required key 'integrand'", source=source, hint=f"add a line such as {_HINT_EXAMPLE}"
+        )
+
+    def string(key: str, default: str) -> str:
+        value = data.get(key, default)
+        if not isinstance(value, str):
+            raise InputError(
+                f"'{key}' must be a string, not {_toml_type(value)}",
+                source=source,
+                line=where(key),
+                term=key,
+                hint=f'write {key} = "..."',
+            )
+        return value
+
+    integrand_text = string("integrand", "")
+    title = string("title", "")
+    notes = string("notes", "")
+    provenance = string("provenance", "")
+    xname = string("integration_variable", "x")
+    _check_name(xname, "integration_variable", source, where("integration_variable"))
+
+    variables = data.get("variables", ["s", "t"])
+    if not isinstance(variables, list):
+        raise InputError(
+            f"'variables' must be a list of two names, not {_toml_type(variables)}",
+            source=source,
+            line=where("variables"),
+            term="variables",
+            hint='write variables = ["s", "t"]',
+        )
+    if len(variables) != 2:
+        raise InputError(
+            f"'variables' must list exactly two names, found {len(variables)}",
+            source=source,
+            line=where("variables"),
+            term="variables",
+            hint='write variables = ["s", "t"]',
+        )
+    for name in variables:
+        _check_name(name, "variables", source, where("variables"))
+
+    parameters = data.get("parameters", [])
+    if not isinstance(parameters, list):
+        raise InputError(
+            f"'parameters' must be a list of names, not {_toml_type(parameters)}",
+            source=source,
+            line=where("parameters"),
+            term="parameters",
+            hint='write parameters = ["a", "b"]',
+        )
+    for name in parameters:
+        _check_name(name, "parameters", source, where("parameters"))
+
+    seen: Dict[str, str] = {}
+    for key, names in (("variables", variables), ("parameters", parameters), ("integration_variable", [xname])):
+        for name in names:
+            if name in seen:
+                other = seen[name]
+                message = (
+                    f"'{name}' appears twice in '{key}'"
+                    if other == key
+                    else f"'{name}' is used both in '{other}' and in '{key}'"
+                )
+                raise InputError(
+                    message, source=source, line=where(key), term=name, hint="all names must be distinct"
+                )
+            seen[name] = key
+
+    key_line = where("integrand")
+    positions = _string_positions(text, layout.values.get("integrand"), integrand_text)
+    terms = terms_from_expression(
+        integrand_text,
+        variables=tuple(variables),
+        parameters=tuple(parameters),
+        xname=xname,
+        source=source,
+        line=key_line,
+        positions=positions,
+        store=store,
+    )
+    return Integrand(
+        terms=terms,
+        variables=(variables[0], variables[1]),
+        parameters=tuple(parameters),
+        integration_variable=xname,
+        title=title,
+        notes=notes,
+        provenance=provenance,
+        source=source,
+        expression=integrand_text,
+    )
+
+
+def terms_from_expression(
+    text: str,
+    variables: Sequence[str] = ("s", "t"),
+    parameters: Sequence[str] = (),
+    xname: str = "x",
+    *,
+    source: Optional[str] = None,
+    line: Optional[int] = None,
+    positions: Optional[Sequence[Tuple[int, int]]] = None,
+    store: TableStore | None = None,
+) -> List[Term]:
+    """Turn an integrand expression into merged :class:`~lowenergy.integrand.model.Term` s.
+
+    Parameters
+    ----------
+    text:
+        The expression (see the module docstring).  Line breaks are blanks.
+    variables, parameters, xname:
+        Names of the two expansion variables, the free parameters and x.
+    source, line:
+        Where the text comes from (for messages): ``line`` is the line of its
+        first character; later lines of a multi-line text are counted on.
+    positions:
+        Optional ``(line, column)`` in the file of every character of
+        ``text`` (plus, optionally, one for the end of the text); overrides
+        ``line``.
+    store:
+        MZV table store (default: the user's cache).
+
+    Returns
+    -------
+    Terms merged by ``(x_exp, y_exp, word)``, zero terms dropped, in the
+    order of first appearance.  Coefficient keys are exponent tuples
+    ``(s, t, params...)``.
+    """
+    if not isinstance(text, str):
+        raise InputError(f"the integrand must be a string, not {type(text).__name__}", source=source, line=line)
+    variables = tuple(variables)
+    parameters = tuple(parameters)
+    if len(variables) != 2:
+        raise InputError("exactly two expansion variables are needed", source=source, line=line)
+    names_seen: set = set()
+    for role, names in (("variables", variables), ("parameters", parameters), ("integration_variable", (xname,))):
+        for name in names:
+            _check_name(name, role, source, line)
+            if name in names_seen:
+                raise InputError(f"the name '{name}' is used twice", source=source, line=line, term=name)
+            names_seen.add(name)
+    joined, mapping = _join_lines(text, line, positions)
+
+    def locate(err: LowEnergyError) -> LowEnergyError:
+        if err.source is None:
+            err.source = source
+        if err.column is not None and mapping is not None:
+            err.line, err.column = mapping(err.column)
+        elif err.line is None:
+            err.line = line if positions is None or not positions else positions[0][0]
+        return err
+
+    try:
+        tree = parse_expression(joined)
+    except LowEnergyError as err:
+        raise locate(err) from None
+    evaluator = _Evaluator(variables, parameters, xname, store or default_store())
+    merged: Dict[tuple, list] = {}
+    total = 0
+    try:
+        for summand, sign in _summands(tree, evaluator):
+            value = evaluator.evaluate(summand)
+            summand_line = None
+            if mapping is not None and summand.col is not None:
+                summand_line = mapping(summand.col)[0]
+            elif mapping is None:
+                summand_line = line
+            snippet = _node_text(summand)
+            for key, poly in evaluator.finish(value, summand).items():
+                slot = merged.get(key)
+                if slot is None:
+                    merged[key] = slot = [{}, summand_line, snippet]
+                target = slot[0]
+                before = len(target)
+                for exps, c in poly.items():
+                    y = target.get(exps, MZV()) + (c if sign > 0 else -c)
+                    if y:
+                        target[exps] = y
+                    else:
+                        target.pop(exps, None)
+                total += len(target) - before
+                if total > MAX_TERMS:
+                    raise InputError(
+                        f"the integrand has more than {MAX_TERMS} terms",
+                        column=summand.col,
+                        term=snippet,
+                        hint="split the computation",
+                    )
+    except LowEnergyError as err:
+        raise locate(err) from None
+    terms: List[Term] = []
+    for (xe, ye, word), (poly, summand_line, snippet) in merged.items():
+        if not poly:
+            continue
+        terms.append(
+            Term(
+                coefficient=poly,
+                x_exp=_linear(xe),
+                y_exp=_linear(ye),
+                word=word,
+                source_line=summand_line,
+                text=snippet,
+            )
+        )
+    return terms
+
+
+# ==========================================================================
+# TOML helpers
+# ==========================================================================
+
+
+def _decode(toml_text, source: str) -> str:
+    if isinstance(toml_text, (bytes, bytearray)):
+        data = bytes(toml_text)
+        if len(data) > MAX_FILE_SIZE:
+            raise InputError(f"file larger than {MAX_FILE_SIZE} bytes", source=source, hint="integrand files are small")
+        try:
+            return data.decode("utf-8-sig")
+        except UnicodeDecodeError as exc:
+            line = data[: exc.start].count(b"\n") + 1
+            raise ParseError(
+                "the file is not valid UTF-8", source=source, line=line, hint="save the file as UTF-8"
+            ) from None
+    if not isinstance(toml_text, str):
+        raise InputError(f"integrand text must be a string, not {type(toml_text).__name__}", source=source)
+    if len(toml_text) > MAX_FILE_SIZE:
+        raise InputError(f"text longer than {MAX_FILE_SIZE} characters", source=source, hint="integrand files are small")
+    return toml_text[1:] if toml_text.startswith("\ufeff") else toml_text
+
+
+def _toml_error(exc: Exception, text: str, source: str) -> ParseError:
+    message = str(exc)
+    line = getattr(exc, "lineno", None)
+    column = getattr(exc, "colno", None)
+    match = re.search(r"\s*\(at line (\d+), column (\d+)\)\s*$", message)
+    if match:
+        line = line or int(match.group(1))
+        column = column or int(match.group(2))
+        message = message[: match.start()]
+    else:
+        match = re.search(r"\s*\(at end of document\)\s*$", message)
+        if match:
+            message = message[: match.start()] + " at the end of the document"
+            line = line or (text.count("\n") + (0 if text.endswith("\n") else 1) or 1)
+    message = getattr(exc, "msg", None) or message
+    return ParseError(
+        f"malformed TOML: {message}",
+        source=source,
+        line=line,
+        column=column,
+        hint=f"an integrand file is TOML, e.g. {_HINT_EXAMPLE}",
+    )
+
+
+def _toml_type(value) -> str:
+    if isinstance(value, bool):
+        return "a boolean"
+    if isinstance(value, int):
+        return "an integer"
+    if isinstance(value, float):
+        return "a number"
+    if isinstance(value, str):
+        return "a string"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, dict):
+        return "a table"
+    return "a date or time"
+
+
+def _check_name(name, key: str, source, line) -> None:
+    if not isinstance(name, str):
+        raise InputError(
+            f"'{key}' must contain names (strings), found {_toml_type(name)}",
+            source=source,
+            line=line,
+            term=key,
+            hint='names are written in quotes, e.g. "s"',
+        )
+    if not _IDENTIFIER.match(name):
+        raise InputError(
+            f"'{_short(name, 40)}' in '{key}' is not a valid name",
+            source=source,
+            line=line,
+            term=_short(name, 40),
+            hint="names consist of letters, digits and _ and do not start with a digit",
+        )
+    if name in RESERVED_NAMES:
+        raise InputError(
+            f"'{name}' in '{key}' is a reserved name",
+            source=source,
+            line=line,
+            term=name,
+            hint="choose a name other than " + ", ".join(sorted(RESERVED_NAMES)),
+        )
+
+
+class _Layout:
+    """Where top-level keys are: ``lines[key]`` and ``values[key]`` (offset of the value)."""
+
+    def __init__(self) -> None:
+        self.lines: Dict[str, int] = {}
+        self.values: Dict[str, int] = {}
+
+
+_BARE_KEY = r"[A-Za-z0-9_-]+"
+_QUOTED_KEY = r'"(?:[^"\\\n]|\\.)*"|' + r"'[^'\n]*'"
+_KEY_PART = f"(?:{_BARE_KEY}|{_QUOTED_KEY})"
+_KEY_LINE = re.compile(rf"[ \t]*({_KEY_PART})(?:[ \t]*\.[ \t]*{_KEY_PART})*[ \t]*=[ \t]*")
+_HEADER = re.compile(rf"[ \t]*\[\[?[ \t]*({_KEY_PART})")
+
+
+def _key_name(part: str) -> str:
+    if part[:1] == "'":
+        return part[1:-1]
+    if part[:1] == '"':
+        inner = part[1:-1]
+        return inner if "\\" not in inner else inner  # escapes in keys: best effort
+    return part
+
+
+def _scan_toml(text: str) -> _Layout:
+    """Best-effort lexer that finds the lines of top-level keys and table headers.
+
+    It skips strings (all four kinds), comments and nested arrays/inline
+    tables so that ``key =`` inside a multi-line string is not mistaken for a
+    key.  Only used for messages; the document itself is read by tomllib.
+    """
+    layout = _Layout()
+    n = len(text)
+    i = 0
+    line = 1
+    depth = 0
+    in_table = False
+    line_start = True
+    while i < n:
+        if line_start and depth == 0:
+            line_start = False
+            header = _HEADER.match(text, i)
+            if header:
+                in_table = True
+                layout.lines.setdefault(_key_name(header.group(1)), line)
+                i = header.end()
+                continue
+            key = _KEY_LINE.match(text, i)
+            if key:
+                if not in_table:
+                    name = _key_name(key.group(1))
+                    if name not in layout.lines:
+                        layout.lines[name] = line
+                        layout.values[name] = key.end()
+                i = key.end()
+                continue
+        ch = text[i]
+        if ch == "\n":
+            line += 1
+            line_start = True
+            i += 1
+        elif ch == "#":
+            while i < n and text[i] != "\n":
+                i += 1
+        elif text.startswith('"""', i) or text.startswith("'''", i):
+            quote = text[i]
+            close = quote * 3
+            i += 3
+            while i < n and not text.startswith(close, i):
+                if text[i] == "\\" and quote == '"':
+                    i += 1
+                    if i < n and text[i] == "\n":
+                        line += 1
+                elif text[i] == "\n":
+                    line += 1
+                i += 1
+            i += 3
+            extra = 0
+            while i < n and text[i] == quote and extra < 2:
+                i += 1
+                extra += 1
+        elif ch in "\"'":
+            i += 1
+            while i < n and text[i] != ch and text[i] != "\n":
+                if text[i] == "\\" and ch == '"' and i + 1 < n and text[i + 1] != "\n":
+                    i += 1
+                i += 1
+            if i < n and text[i] == ch:
+                i += 1
+        elif ch in "[{":
+            depth += 1
+            i += 1
+        elif ch in "]}":
+            depth = max(0, depth - 1)
+            i += 1
+        else:
+            i += 1
+    return layout
+
+
+_ESCAPES = {"b": "\b", "t": "\t", "n": "\n", "f": "\f", "r": "\r", '"': '"', "\\": "\\"}
+
+
+def _decode_string_at(text: str, start: int) -> Optional[Tuple[str, List[int], int]]:
+    """Decode the TOML string starting at ``start``.
+
+    Returns ``(value, offsets, end)`` with the offset in ``text`` of the
+    source of every character of the value and the offset just after the
+    closing quote, or None if ``start`` does not hold a string this
+    function understands.
+    """
+    n = len(text)
+    out: List[str] = []
+    where: List[int] = []
+    if text.startswith('"""', start) or text.startswith("'''", start):
+        quote = text[start]
+        i = start + 3
+        if text.startswith("\r\n", i):
+            i += 2
+        elif text.startswith("\n", i):
+            i += 1
+        while i < n:
+            if text.startswith(quote * 3, i):
+                extra = 0
+                while extra < 2 and text.startswith(quote * 3, i + 1):
+                    out.append(quote)
+                    where.append(i)
+                    i += 1
+                    extra += 1
+                return "".join(out), where, i + 3
+            ch = text[i]
+            if ch == "\\" and quote == '"':
+                j = i + 1
+                while j < n and text[j] in " \t":
+                    j += 1
+                if j < n and text[j] in "\r\n":
+                    while j < n and text[j] in " \t\r\n":
+                        j += 1
+                    i = j
+                    continue
+                decoded = _escape(text, i)
+                if decoded is None:
+                    return None
+                out.append(decoded[0])
+                where.append(i)
+                i = decoded[1]
+                continue
+            if ch == "\r" and text.startswith("\r\n", i):
+                out.append("\n")
+                where.append(i)
+                i += 2
+                continue
+            out.append(ch)
+            where.append(i)
+            i += 1
+        return None
+    if start < n and text[start] in "\"'":
+        quote = text[start]
+        i = start + 1
+        while i < n and text[i] != "\n":
+            ch = text[i]
+            if ch == quote:
+                return "".join(out), where, i + 1
+            if ch == "\\" and quote == '"':
+                decoded = _escape(text, i)
+                if decoded is None:
+                    return None
+                out.append(decoded[0])
+                where.append(i)
+                i = decoded[1]
+                continue
+            out.append(ch)
+            where.append(i)
+            i += 1
+    return None
+
+
+def _escape(text: str, i: int) -> Optional[Tuple[str, int]]:
+    letter = text[i + 1 : i + 2]
+    if letter in _ESCAPES:
+        return _ESCAPES[letter], i + 2
+    if letter in ("u", "U"):
+        size = 4 if letter == "u" else 8
+        digits = text[i + 2 : i + 2 + size]
+        if len(digits) == size and all(c in "0123456789abcdefABCDEF" for c in digits):
+            code = int(digits, 16)
+            if code <= 0x10FFFF:
+                return chr(code), i + 2 + size
+    return None
+
+
+def _string_positions(text: str, offset: Optional[int], value: str) -> Optional[List[Tuple[int, int]]]:
+    """``(line, column)`` in ``text`` of every character of the string value at ``offset``.
+
+    None when the value cannot be located exactly (then messages give the
+    line of the key only).  The list has one extra entry for the end of the
+    string (the closing quote).
+    """
+    if offset is None:
+        return None
+    decoded = _decode_string_at(text, offset)
+    if decoded is None or decoded[0] != value:
+        return None
+    starts = [0]
+    for k, ch in enumerate(text):
+        if ch == "\n":
+            starts.append(k + 1)
+
+    def spot(off: int) -> Tuple[int, int]:
+        row = bisect.bisect_right(starts, off) - 1
+        return row + 1, off - starts[row] + 1
+
+    quote_len = 3 if text.startswith(text[offset] * 3, offset) else 1
+    end = decoded[2] - quote_len
+    return [spot(off) for off in decoded[1]] + [spot(end)]
+
+
+def _join_lines(text: str, line: Optional[int], positions):
+    """The one-line expression and a map from its columns to (line, column).
+
+    Line breaks become blanks (``\\r\\n`` becomes two).  Returns
+    ``(joined, mapping)``; ``mapping`` is None when nothing is known
+    about the location.
+    """
+    joined = text.replace("\r", " ").replace("\n", " ")
+    if positions is not None:
+        pos = list(positions)
+        if not pos:
+            return joined, None
+
+        def mapping(column: int) -> Tuple[Optional[int], Optional[int]]:
+            index = min(max(column, 1), len(pos)) - 1
+            return pos[index]
+
+        return joined, mapping
+    if line is None:
+        return joined, None
+    # map columns of a multi-line text with first line ``line``
+    starts = [0]
+    for k, ch in enumerate(text):
+        if ch == "\n":
+            starts.append(k + 1)
+
+    def mapping(column: int) -> Tuple[Optional[int], Optional[int]]:
+        off = max(column, 1) - 1
+        row = bisect.bisect_right(starts, off) - 1
+        if row == 0:
+            return line, column
+        return line + row, off - starts[row] + 1
+
+    return joined, mapping
+
+
+# ==========================================================================
+# the expression evaluator
+# ==========================================================================
+
+# Internal exponent of x or 1-x: (shift, coefficient, variable index or None).
+_Exp = Tuple[int, Fraction, Optional[int]]
+_ZERO_EXP: _Exp = (0, Fraction(0), None)
+# Key of an intermediate term: (exponent of x, exponent of 1-x, word)
+_Key = Tuple[_Exp, _Exp, Tuple[int, ...]]
+# Coefficient: {(power of pi, exponents of s, t, params..., MZV monomial): rational}.
+# MZVs are kept flat as monomials in the generators of the canonical basis
+# (as in MZV.as_dict()); products of canonical monomials are canonical, so
+# the arithmetic is plain Fraction arithmetic until the end (much faster
+# than MZV objects in the inner loops).
+_CoefKey = Tuple[int, Tuple[int, ...], tuple]
+_Coef = Dict[_CoefKey, Fraction]
+_Value = Dict[_Key, _Coef]
+
+
+def _gen_key(g: Tuple[int, ...]) -> tuple:
+    return (sum(g), g)
+
+
+def _mono_mul(a: tuple, b: tuple) -> tuple:
+    if not a:
+        return b
+    if not b:
+        return a
+    return tuple(sorted(a + b, key=_gen_key))
+
+
+def _linear(e: _Exp) -> LinearExponent:
+    shift, coeff, var = e
+    return LinearExponent(shift, coeff, var) if var is not None else LinearExponent(shift)
+
+
+def _summands(tree: Node, evaluator: "_Evaluator"):
+    """Top-level summands with their signs, left to right (no recursion)."""
+    out = []
+    stack = [(tree, 1)]
+    while stack:
+        node, sign = stack.pop()
+        if isinstance(node, (Add, Sub)) and not _is_one_minus_x_shape(node, evaluator.xname):
+            evaluator.check_sum(node)
+            stack.append((node.right, sign if isinstance(node, Add) else -sign))
+            stack.append((node.left, sign))
+        else:
+            out.append((node, sign))
+    return out
+
+
+def _is_one_minus_x_shape(node: Node, xname: Optional[str] = None) -> bool:
+    def is_x(n: Node) -> bool:
+        return isinstance(n, Sym) and (xname is None or n.name == xname)
+
+    def is_one(n: Node) -> bool:
+        return isinstance(n, Num) and n.value == 1
+
+    if isinstance(node, Sub):
+        return is_one(node.left) and is_x(node.right)
+    if isinstance(node, Add):
+        return is_one(node.right) and isinstance(node.left, Neg) and is_x(node.left.operand)
+    return False
+
+
+class _Evaluator:
+    def __init__(self, variables, parameters, xname: str, store: TableStore) -> None:
+        self.variables = tuple(variables)
+        self.parameters = tuple(parameters)
+        self.xname = xname
+        self.store = store
+        self.nvars = 2 + len(self.parameters)
+        self.zero_exps = (0,) * self.nvars
+        self.names = {name: i for i, name in enumerate(self.variables + self.parameters)}
+        self.work = 0
+
+    # -- small constructors ------------------------------------------------------
+    def flat(self, value: MZV, factor: int = 1, pi: int = 0) -> _Coef:
+        return {(pi, self.zero_exps, mono): c * factor for mono, c in value.as_dict().items()}
+
+    def const(self, value: MZV, pi: int = 0) -> _Value:
+        if not value:
+            return {}
+        return {(_ZERO_EXP, _ZERO_EXP, ()): self.flat(value, pi=pi)}
+
+    def rational(self, q: Fraction) -> _Value:
+        if not q:
+            return {}
+        return {(_ZERO_EXP, _ZERO_EXP, ()): {(0, self.zero_exps, ()): Fraction(q)}}
+
+    def words(self, combination: Dict[Tuple[int, ...], MZV], factor: int = 1) -> _Value:
+        out: _Value = {}
+        for word, c in combination.items():
+            if c:
+                out[(_ZERO_EXP, _ZERO_EXP, word)] = self.flat(c, factor)
+        return out
+
+    def fail(self, node: Node, message: str, hint: Optional[str] = None, cls=InputError) -> LowEnergyError:
+        return cls(message, column=node.col, term=_node_text(node), hint=hint)
+
+    # -- x patterns ----------------------------------------------------------------
+    def x_argument(self, node: Node) -> Optional[str]:
+        if isinstance(node, Sym) and node.name == self.xname:
+            return "x"
+        if _is_one_minus_x_shape(node, self.xname):
+            return "1-x"
+        return None
+
+    def is_bare_x(self, node: Node) -> bool:
+        while isinstance(node, Neg):
+            node = node.operand
+        return isinstance(node, Sym) and node.name == self.xname
+
+    # -- evaluation ------------------------------------------------------------------
+    def evaluate(self, tree: Node) -> _Value:
+        """Evaluate a tree bottom-up with an explicit stack."""
+        results: List[_Value] = []
+        stack: List[Tuple[Node, bool]] = [(tree, False)]
+        while stack:
+            node, ready = stack.pop()
+            if not ready:
+                leaf = self.leaf(node)
+                if leaf is not None:
+                    results.append(leaf)
+                    continue
+                stack.append((node, True))
+                if isinstance(node, Neg):
+                    stack.append((node.operand, False))
+                elif isinstance(node, Pow):
+                    stack.append((node.exponent, False))
+                    stack.append((node.base, False))
+                else:
+                    stack.append((node.right, False))  # type: ignore[attr-defined]
+                    stack.append((node.left, False))  # type: ignore[attr-defined]
+                continue
+            if isinstance(node, Neg):
+                results.append(self.negate(results.pop()))
+                continue
+            right = results.pop()
+            left = results.pop()
+            if isinstance(node, Add):
+                results.append(self.add(left, right, 1))
+            elif isinstance(node, Sub):
+                results.append(self.add(left, right, -1))
+            elif isinstance(node, Mul):
+                results.append(self.mul(left, right, node))
+            elif isinstance(node, Div):
+                results.append(self.div(left, right, node))
+            elif isinstance(node, Pow):
+                results.append(self.power(left, right, node))
+            else:  # pragma: no cover - the parser has no other node types
+                raise self.fail(node, f"unsupported syntax {type(node).__name__}")
+        return results.pop()
+
+    def leaf(self, node: Node) -> Optional[_Value]:
+        """The value of a node that is evaluated as a whole, else None."""
+        if isinstance(node, Num):
+            return self.rational(node.value)
+        if isinstance(node, Sym):
+            return self.symbol(node)
+        if isinstance(node, Call):
+            return self.call(node)
+        if isinstance(node, (Add, Sub)):
+            if _is_one_minus_x_shape(node, self.xname):
+                return {(_ZERO_EXP, (1, Fraction(0), None), ()): {(0, self.zero_exps, ()): Fraction(1)}}
+            self.check_sum(node)
+        return None
+
+    def check_sum(self, node: Node) -> None:
+        """Refuse a bare x as a direct operand of + or - (other than in 1-x)."""
+        if self.is_bare_x(node.left) or self.is_bare_x(node.right):  # type: ignore[attr-defined]
+            x = self.xname
+            raise self.fail(
+                node,
+                f"{x} is added to other terms: the only binomial in {x} is (1-{x})",
+                f"{x} enters through {x}^(e), (1-{x})^(e) and log, Li, G of {x} or 1-{x} "
+                f"(the letter of e.g. 1+{x} is outside the alphabet {{0, 1}}); "
+                f"for a polynomial in {x} write its monomials with explicit powers, e.g. 1 + {x}^1",
+            )
+
+    def symbol(self, node: Sym) -> _Value:
+        name = node.name
+        if name == self.xname:
+            return {((1, Fraction(0), None), _ZERO_EXP, ()): {(0, self.zero_exps, ()): Fraction(1)}}
+        if name in self.names:
+            exps = [0] * self.nvars
+            exps[self.names[name]] = 1
+            return {(_ZERO_EXP, _ZERO_EXP, ()): {(0, tuple(exps), ()): Fraction(1)}}
+        if name == "pi":
+            return self.const(MZV.one(), pi=1)
+        if name in ("zeta", "G", "Li", "log"):
+            example = {"zeta": "zeta(3)", "G": f"G(0,1; {self.xname})", "Li": f"Li(2, {self.xname})"}
+            raise self.fail(
+                node,
+                f"'{name}' is a function",
+                f"write {example.get(name, f'log({self.xname})')}",
+            )
+        known = [self.xname, *self.variables, *self.parameters, "pi"]
+        close = difflib.get_close_matches(name, known, n=1, cutoff=0.6)
+        hint = f"did you mean '{close[0]}'? " if close else ""
+        hint += "known names: " + ", ".join(known)
+        if not self.parameters:
+            hint += "; declare free parameters with parameters = [...]"
+        raise self.fail(node, f"unknown symbol '{_short(name, 40)}'", hint)
+
+    # -- functions -------------------------------------------------------------------
+    def call(self, node: Call) -> _Value:
+        name = node.name
+        x = self.xname
+        if name == "zeta":
+            return self.zeta_call(node)
+        if name == "log":
+            if node.letters is not None or len(node.args) != 1:
+                raise self.fail(node, "log takes one argument", f"write log({x}) or log(1-{x})")
+            kind = self.x_argument(node.args[0])
+            if kind is None:
+                raise self.fail(
+                    node,
+                    f"only log({x}) and log(1-{x}) are supported",
+                    "other logarithms are not functions of the alphabet {0, 1} or not MZVs",
+                )
+            return self.words({(0,) if kind == "x" else (1,): MZV.one()})
+        if name == "Li":
+            if node.letters is not None or len(node.args) != 2:
+                raise self.fail(node, "Li takes two arguments, the weight and the argument", f"write Li(2, {x})")
+            order = node.args[0]
+            if not isinstance(order, Num) or order.value.denominator != 1 or order.value < 1:
+                raise self.fail(order, "the weight n of Li(n, ...) must be a positive integer", f"write Li(2, {x})")
+            n = int(order.value)
+            if n > MAX_WORD_LENGTH:
+                raise self.fail(order, f"Li of weight larger than {MAX_WORD_LENGTH}")
+            kind = self.x_argument(node.args[1])
+            if kind is None:
+                raise self.fail(node.args[1], f"Li is supported only at {x} and 1-{x}", f"write Li({n}, {x})")
+            word = (0,) * (n - 1) + (1,)
+            return self.word_value(word, kind, node, factor=-1)
+        if name == "G":
+            if node.letters is None or len(node.args) != 1:
+                raise self.fail(node, "G needs letters, ';' and one argument", f"write G(0,1; {x})")
+            letters = []
+            for a in node.letters:
+                if not isinstance(a, Num) or a.value not in (0, 1):
+                    raise self.fail(a, "letters of G must be 0 or 1", f"write e.g. G(0,1; {x})")
+                letters.append(int(a.value))
+            if len(letters) > MAX_WORD_LENGTH:
+                raise self.fail(node, f"word longer than {MAX_WORD_LENGTH} letters")
+            arg = node.args[0]
+            if isinstance(arg, Num) and arg.value == 1:
+                try:
+                    if len(set(letters)) > 1:
+                        require_weight(len(letters), self.store)
+                    return self.const(g_value(tuple(letters), store=self.store))
+                except LowEnergyError as err:
+                    raise err.located(column=node.col, term=_node_text(node))
+            kind = self.x_argument(arg)
+            if kind is None:
+                raise self.fail(arg, f"G is supported only at {x}, 1-{x} and 1", f"write G(0,1; {x})")
+            return self.word_value(tuple(letters), kind, node)
+        if name == x or name in self.names or name == "pi":
+            raise self.fail(node, f"'{name}' is not a function", f"write {name}*(...) for a product")
+        known = ["zeta", "log", "Li", "G"]
+        aliases = {"ln": f"log({x})", "Li2": f"Li(2, {x})", "Li3": f"Li(3, {x})", "polylog": f"Li(2, {x})"}
+        if name in aliases:
+            hint = f"write {aliases[name]}"
+        else:
+            close = difflib.get_close_matches(name, known, n=1, cutoff=0.5)
+            hint = (f"did you mean '{close[0]}'? " if close else "") + "known functions: zeta, log, Li, G"
+        raise self.fail(node, f"unknown function '{_short(name, 40)}'", hint)
+
+    def word_value(self, word: Tuple[int, ...], kind: str, node: Node, factor: int = 1) -> _Value:
+        if kind == "x":
+            return self.words({word: MZV.one()}, factor)
+        try:
+            combination = g_of_one_minus_x(word, store=self.store)
+        except LowEnergyError as err:
+            raise err.located(column=node.col, term=_node_text(node))
+        return self.words(combination, factor)
+
+    def zeta_call(self, node: Call) -> _Value:
+        if node.letters is not None:
+            raise self.fail(node, "zeta takes indices only, without ';'", "write zeta(3,5)")
+        if not node.args:
+            raise self.fail(node, "zeta needs at least one index", "write zeta(3)")
+        indices = []
+        for a in node.args:
+            if not isinstance(a, Num) or a.value.denominator != 1 or a.value < 1:
+                raise self.fail(a, "MZV indices must be positive integers", "write zeta(3,5)")
+            indices.append(int(a.value))
+        if indices[0] == 1:
+            raise self.fail(
+                node,
+                "zeta with first index 1 diverges",
+                "integrands may contain convergent MZVs only (first index at least 2)",
+                RegularizationError,
+            )
+        if sum(indices) > 10 * MAX_WORD_LENGTH:
+            raise self.fail(node, "MZV weight too large")
+        try:
+            return self.const(zeta(*indices, store=self.store))
+        except LowEnergyError as err:
+            raise err.located(column=node.col, term=_node_text(node))
+
+    # -- arithmetic ------------------------------------------------------------------
+    @staticmethod
+    def size(value: _Value) -> int:
+        return sum(len(coef) for coef in value.values())
+
+    def negate(self, value: _Value) -> _Value:
+        for coef in value.values():
+            for k in coef:
+                coef[k] = -coef[k]
+        return value
+
+    def add(self, left: _Value, right: _Value, sign: int) -> _Value:
+        """``left + sign*right``; consumes (mutates) both operands."""
+        for key, coef in right.items():
+            target = left.get(key)
+            if target is None:
+                left[key] = coef if sign > 0 else {k: -c for k, c in coef.items()}
+                continue
+            for k, c in coef.items():
+                y = target.get(k, 0) + (c if sign > 0 else -c)
+                if y:
+                    target[k] = y
+                else:
+                    target.pop(k, None)
+            if not target:
+                del left[key]
+        return left
+
+    def combine(self, a: _Exp, b: _Exp, node: Node, which: str) -> _Exp:
+        shift = a[0] + b[0]
+        if a[2] is None or b[2] is None or a[2] == b[2]:
+            var = a[2] if a[2] is not None else b[2]
+            coeff = a[1] + b[1]
+            if coeff == 0:
+                var = None
+            e = (shift, coeff, var)
+            self.check_exponent(e, node, which)
+            return e
+        raise self.mixed(node, which)
+
+    def mixed(self, node: Node, which: str) -> LowEnergyError:
+        s, t = self.variables
+        return self.fail(
+            node,
+            f"the exponent of {which} would contain both {s} and {t}",
+            f"each exponent of {self.xname} and 1-{self.xname} may contain only one expansion variable",
+        )
+
+    def check_exponent(self, e: _Exp, node: Node, which: str) -> None:
+        if abs(e[0]) > MAX_EXPONENT or abs(e[1]) > MAX_EXPONENT:
+            raise self.fail(node, f"exponent of {which} larger than {MAX_EXPONENT}", "exponents are limited")
+
+    def mul(self, a: _Value, b: _Value, node: Node) -> _Value:
+        if not a or not b:
+            return {}
+        if len(a) * len(b) > MAX_TERMS:
+            raise self.too_many(node)
+        # the shuffles multiply the work: count it before doing it
+        work = 0
+        for ka, ca in a.items():
+            la = len(ka[2])
+            for kb, cb in b.items():
+                lb = len(kb[2])
+                if la + lb > MAX_WORD_LENGTH:
+                    raise self.fail(node, f"product of G-words longer than {MAX_WORD_LENGTH} letters")
+                work += comb(la + lb, la) * len(ca) * len(cb)
+            if work > MAX_TERMS:
+                raise self.too_many(node)
+        self.work += work
+        if self.work > MAX_WORK:
+            raise self.fail(
+                node,
+                f"expanding the integrand needs more than {MAX_WORK} multiplications of terms",
+                "simplify the integrand or split it into several files",
+            )
+        x, y = self.xname, f"(1-{self.xname})"
+        out: _Value = {}
+        for (xa, ya, wa), ca in a.items():
+            for (xb, yb, wb), cb in b.items():
+                xe = self.combine(xa, xb, node, x)
+                ye = self.combine(ya, yb, node, y)
+                coef = self.coef_mul(ca, cb, node)
+                if not coef:
+                    continue
+                shuffled = shuffle(wa, wb) if wa and wb else {wa + wb: 1}
+                for w, m in shuffled.items():
+                    key = (xe, ye, w)
+                    target = out.get(key)
+                    if target is None:
+                        out[key] = target = {}
+                    for k, c in coef.items():
+                        v = target.get(k, 0) + c * m
+                        if v:
+                            target[k] = v
+                        else:
+                            target.pop(k, None)
+                    if not target:
+                        del out[key]
+        if self.size(out) > MAX_TERMS:
+            raise self.too_many(node)
+        return out
+
+    def too_many(self, node: Node) -> LowEnergyError:
+        return self.fail(
+            node,
+            f"expanding this product would exceed {MAX_TERMS} terms",
+            "simplify the integrand or split it into several files",
+        )
+
+    def coef_mul(self, a: _Coef, b: _Coef, node: Node) -> _Coef:
+        out: _Coef = {}
+        for (pa, ea, ma), ca in a.items():
+            for (pb, eb, mb), cb in b.items():
+                exps = tuple(i + j for i, j in zip(ea, eb))
+                if pa + pb > 4 * MAX_EXPONENT or max(exps, default=0) > 4 * MAX_EXPONENT:
+                    raise self.fail(node, "powers too large", "simplify the integrand")
+                k = (pa + pb, exps, _mono_mul(ma, mb))
+                v = out.get(k, 0) + ca * cb
+                if v:
+                    out[k] = v
+                else:
+                    out.pop(k, None)
+        return out
+
+    def rational_of(self, value: _Value) -> Optional[Fraction]:
+        """The value as a rational number, or None."""
+        if not value:
+            return Fraction(0)
+        if len(value) != 1:
+            return None
+        (key, coef), = value.items()
+        if key != (_ZERO_EXP, _ZERO_EXP, ()) or len(coef) != 1:
+            return None
+        (k, c), = coef.items()
+        if k != (0, self.zero_exps, ()):
+            return None
+        return c
+
+    def monomial_of(self, value: _Value) -> Optional[Tuple[_Exp, _Exp, Fraction]]:
+        """``(x exponent, 1-x exponent, q)`` if value is ``q x^a (1-x)^b`` with rational q."""
+        if len(value) != 1:
+            return None
+        ((xe, ye, word), coef), = value.items()
+        if word or len(coef) != 1:
+            return None
+        (k, c), = coef.items()
+        if k != (0, self.zero_exps, ()):
+            return None
+        return xe, ye, c
+
+    def variable_in(self, value: _Value) -> Optional[str]:
+        allnames = self.variables + self.parameters
+        for coef in value.values():
+            for (_, exps, _) in coef:
+                for i, e in enumerate(exps):
+                    if e:
+                        return allnames[i]
+        return None
+
+    def div(self, a: _Value, b: _Value, node: Div) -> _Value:
+        mono = self.monomial_of(b)
+        if mono is not None and mono[2] != 0:
+            xe, ye, q = mono
+            inverse = {
+                ((-xe[0], -xe[1], xe[2]), (-ye[0], -ye[1], ye[2]), ()): {(0, self.zero_exps, ()): 1 / q}
+            }
+            return self.mul(a, inverse, node)
+        if not b:
+            raise self.fail(node.right, "division by zero")
+        name = self.variable_in(b)
+        if name is not None:
+            raise self.fail(
+                node.right,
+                f"division by {_node_text(node.right)}: the integrand is not a polynomial in {name}",
+                f"{name} may appear only polynomially; rescale the integrand instead",
+            )
+        raise self.fail(
+            node.right,
+            "division only by non-zero rational numbers (and by x, 1-x)",
+            "multiply by the inverse instead, e.g. x^(-1); MZVs cannot be inverted",
+        )
+
+    def exponent_form(self, value: _Value, node: Node) -> Dict[int, Fraction]:
+        """``{-1: constant, 0: coefficient of s, 1: coefficient of t}`` of an exponent."""
+        out: Dict[int, Fraction] = {}
+        for (xe, ye, word), coef in value.items():
+            if xe != _ZERO_EXP or ye != _ZERO_EXP or word:
+                raise self.fail(
+                    node, f"{self.xname} may not appear in an exponent", f"exponents are like (-{self.variables[0]}-1)"
+                )
+            for (p, exps, mono), c in coef.items():
+                if p or mono:
+                    raise self.fail(
+                        node,
+                        "exponents must be rational numbers plus a rational multiple of "
+                        f"{self.variables[0]} or {self.variables[1]}",
+                        "MZVs and pi cannot appear in exponents",
+                    )
+                for i in range(2, self.nvars):
+                    if exps[i]:
+                        raise self.fail(
+                            node,
+                            f"parameter '{self.parameters[i - 2]}' may not appear in an exponent",
+                            f"exponents may contain only {self.variables[0]} or {self.variables[1]}",
+                        )
+                degree = exps[0] + exps[1]
+                if degree > 1:
+                    raise self.fail(
+                        node,
+                        f"the exponent is not linear in {self.variables[0]}, {self.variables[1]}",
+                        "exponents are an integer plus a rational multiple of one expansion variable",
+                    )
+                slot = -1 if degree == 0 else (0 if exps[0] else 1)
+                out[slot] = out.get(slot, Fraction(0)) + c
+        return {k: v for k, v in out.items() if v}
+
+    def power(self, base: _Value, exponent: _Value, node: Pow) -> _Value:
+        x = self.xname
+        q = self.rational_of(exponent)
+        if q is not None and q.denominator == 1:
+            n = int(q)
+            if abs(n) > MAX_EXPONENT:
+                raise self.fail(node.exponent, f"exponent larger than {MAX_EXPONENT}", "exponents are limited")
+            if n >= 0:
+                # repeated multiplication by the (usually small) base keeps
+                # every intermediate product small, unlike squaring
+                result = self.rational(Fraction(1))
+                for _ in range(n):
+                    result = self.mul(result, base, node)
+                return result
+            mono = self.monomial_of(base)
+            if mono is not None and mono[2] != 0:
+                xe, ye, c = mono
+                m = -n
+                new_x = (-xe[0] * m, -xe[1] * m, xe[2])
+                new_y = (-ye[0] * m, -ye[1] * m, ye[2])
+                self.check_exponent(new_x, node, x)
+                self.check_exponent(new_y, node, f"(1-{x})")
+                return {(new_x, new_y, ()): {(0, self.zero_exps, ()): Fraction(1) / c**m}}
+            if not base:
+                raise self.fail(node, "division by zero (negative power of 0)")
+            name = self.variable_in(base)
+            if name is not None:
+                raise self.fail(
+                    node,
+                    f"negative power: the integrand is not a polynomial in {name}",
+                    f"{name} may appear only polynomially",
+                )
+            raise self.fail(
+                node,
+                f"negative powers are allowed only for rational numbers and the factors {x}, (1-{x})",
+                "MZVs, sums and functions cannot be inverted",
+            )
+        # a non-integer or symbolic exponent: only for x^a (1-x)^b
+        form = self.exponent_form(exponent, node.exponent)
+        if 0 in form and 1 in form:
+            s, t = self.variables
+            raise self.fail(
+                node,
+                f"the exponent contains both {s} and {t}",
+                f"each exponent of {x} and 1-{x} may contain only one expansion variable",
+            )
+        mono = self.monomial_of(base)
+        if (
+            mono is None
+            or mono[2] != 1
+            or mono[0][2] is not None
+            or mono[1][2] is not None
+            or (mono[0][0] == 0 and mono[1][0] == 0)
+        ):
+            what = "a non-integer" if not (0 in form or 1 in form) else "a symbolic"
+            raise self.fail(
+                node,
+                f"{what} power of {_node_text(node.base)}: only {x} and (1-{x}) may be raised to such powers",
+                f"write e.g. {x}^(-{self.variables[0]}-1) or (1-{x})^(-{self.variables[1]}-1)",
+            )
+        constant = form.get(-1, Fraction(0))
+        var = 0 if 0 in form else (1 if 1 in form else None)
+        coeff = form.get(var, Fraction(0)) if var is not None else Fraction(0)
+        result = []
+        for k, which in ((mono[0][0], x), (mono[1][0], f"(1-{x})")):
+            shift = constant * k
+            if shift.denominator != 1:
+                raise self.fail(
+                    node,
+                    f"non-integer power of {which}",
+                    f"the exponent of {which} must be an integer plus a rational multiple of "
+                    f"{self.variables[0]} or {self.variables[1]}",
+                )
+            c = coeff * k
+            e = (int(shift), c, var if c else None)
+            self.check_exponent(e, node, which)
+            result.append(e)
+        return {(result[0], result[1], ()): {(0, self.zero_exps, ()): Fraction(1)}}
+
+    # -- final form ------------------------------------------------------------------
+    def finish(self, value: _Value, node: Node) -> Dict[_Key, Dict[Tuple[int, ...], MZV]]:
+        """Build the MZV coefficients; replace ``pi^(2k)`` by ``(6 zeta(2))^k``
+        and refuse odd powers of pi."""
+        out: Dict[_Key, Dict[Tuple[int, ...], MZV]] = {}
+        pi2 = None
+        for key, coef in value.items():
+            groups: Dict[Tuple[int, Tuple[int, ...]], Dict[tuple, Fraction]] = {}
+            for (p, exps, mono), c in coef.items():
+                if p % 2:
+                    raise self.fail(
+                        node,
+                        "odd power of pi: the coefficient is not a combination of MZVs",
+                        "only even powers of pi are MZVs (pi^2 = 6*zeta(2))",
+                    )
+                groups.setdefault((p, exps), {})[mono] = c
+            poly: Dict[Tuple[int, ...], MZV] = {}
+            for (p, exps), terms in groups.items():
+                c = MZV(terms)
+                if p:
+                    if pi2 is None:
+                        pi2 = MZV.rational(6) * zeta(2, store=self.store)
+                    c = c * pi2 ** (p // 2)
+                y = poly.get(exps, MZV()) + c
+                if y:
+                    poly[exps] = y
+                else:
+                    poly.pop(exps, None)
+            if poly:
+                out[key] = poly
+        return out
