@@ -98,6 +98,9 @@ def reduce(
 def tables_build(
     weight: int = typer.Option(12, "--weight", help="build all weights up to this one"),
     rebuild: bool = typer.Option(False, "--rebuild", help="recompute weights already cached"),
+    method: str = typer.Option(
+        "auto", "--method", help="auto (double shuffle to 12, coaction above) | double-shuffle | motivic"
+    ),
 ) -> None:
     """Build the MZV reduction tables (cached in the user's cache directory)."""
     from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
@@ -124,7 +127,7 @@ def tables_build(
             else:
                 bar.update(task, description=message)
 
-        build_tables(weight, store, rebuild=rebuild, progress=progress)
+        build_tables(weight, store, rebuild=rebuild, progress=progress, method=method)
     typer.echo(f"tables up to weight {weight} in {store.directory}")
 
 
