@@ -1,0 +1,687 @@
+"""Poles of a worldsheet integral at the massive levels, exactly.
+
+For ``I(s, t) = Σ_terms ∫_0^1 P · x^(A) (1-x)^(B) G(w; x) dx`` the poles in s
+and t come only from the end points (METHOD.md §6).  Near ``x = 0`` every
+G-word is a finite sum ``G(w; x) = Σ_k G(0^k; x) · f_k(x)`` with power series
+``f_k`` whose coefficients are rational (:func:`g_series_at_zero`), and
+``(1-x)^B = Σ_m (-1)^m binom(B, m) x^m`` with ``binom(B, m)`` a polynomial in
+the variable of B.  So near ``x = 0``
+
+    P · (1-x)^B G(w; x) = Σ_{m,k} E_{m,k} · x^m G(0^k; x),
+
+``E_{m,k}`` exact polynomials in s, t and the parameters.  With
+``A = shift + c·v`` (v = s or t, c ≠ 0) and ``α = shift + m + 1 + c·v``,
+
+    ∫_0^1 x^(α-1) G(0^k; x) dx = (-1)^k / α^(k+1)
+                               = (-1)^k / (c^(k+1) (v - p_m)^(k+1)),
+    p_m = -(shift + m + 1)/c,
+
+and ``∫_ε^1`` is entire in v, so the pole part of I at ``v = p_m`` is exactly
+``Σ_k (-1)^k c^-(k+1) E_{m,k}(v) / (v - p_m)^(k+1)``, with ``E_{m,k}`` Taylor
+expanded around ``v = p_m`` when it depends on v itself.  For
+``A = -s - 1`` (c = -1, shift = -1) this is METHOD.md's
+``∫ x^(-s-1+n) G(0^k; x) dx = -1/(s-n)^(k+1)``.
+
+The end point ``x = 1`` is the same computation after ``x -> 1 - x``:
+``G(w; 1-y)`` is rewritten in words ``G(u; y)`` with MZV coefficients by
+:func:`lowenergy.integrand.transform.g_of_one_minus_x` (the shuffle-regularized
+values at 1 appear there), and ``x^A`` becomes ``(1-y)^A``.  Poles of the same
+variable at the same place from both end points are added.
+
+Conventions
+-----------
+* A pole part is stored as ``{order m: R_m}`` meaning ``Σ_m R_m / (v - p)^m``;
+  ``R_1`` is the residue ``Res_{v=p} I``.  No sign is flipped: for
+  ``B(-s,-t) = Γ(-s)Γ(-t)/Γ(-s-t)`` the table holds
+  ``R_1 = -(t+1)(t+2)...(t+n)/n!`` at ``s = n``.
+* ``R_m`` is a polynomial in the *other* expansion variable and the
+  parameters: ``{power of the other variable: {parameter exponents: MZV}}``.
+* ``levels = L`` keeps every pole whose location p has ``|p| ≤ L``: for the
+  usual ``x^(-s-1)`` these are the massless pole ``s = 0`` and the massive
+  levels ``s = 1, ..., L``; a tachyon (``x^(-s-2)``, pole at ``s = -1``) is
+  kept too; rational coefficients (``x^(2s-1)``) give rational locations.
+
+Examples
+--------
+>>> from fractions import Fraction
+>>> from lowenergy.integrand.model import Integrand, Term, LinearExponent
+>>> from lowenergy.zeta.element import MZV
+>>> beta = Integrand([Term({(0, 0): MZV.one()}, LinearExponent(-1, Fraction(-1), 0),
+...                        LinearExponent(-1, Fraction(-1), 1))])
+>>> table = residues(beta, 2)
+>>> table.residue_text(2)                   # -(t+1)(t+2)/2
+'-1/2*t^2 - 3/2*t - 1'
+>>> table.residue_text(1, var="t")          # -(s+1)
+'-s - 1'
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import os
+import tempfile
+from dataclasses import dataclass, field
+from fractions import Fraction
+from functools import lru_cache
+from pathlib import Path
+from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
+
+from ..errors import InputError
+from ..integrand.model import Integrand, Poly, Term
+from ..integrand.transform import g_of_one_minus_x
+from ..zeta.element import MZV
+from ..zeta.table import TableStore, default_store
+
+__all__ = [
+    "ParamPoly",
+    "ResiduePoly",
+    "VarSpec",
+    "ResidueTable",
+    "residues",
+    "g_series_at_zero",
+    "poly_text",
+    "write_rows",
+]
+
+ParamPoly = Dict[Tuple[int, ...], MZV]
+ResiduePoly = Dict[int, ParamPoly]
+VarSpec = Union[int, str]
+
+
+# ---------------------------------------------------------------------------
+# G-words near x = 0
+# ---------------------------------------------------------------------------
+
+@lru_cache(maxsize=4096)
+def _g_series_cached(word: Tuple[int, ...], order: int) -> Tuple[Tuple[int, Tuple[Fraction, ...]], ...]:
+    # series[k][m] = coefficient of x^m log(x)^k / k!; the word is built from
+    # its innermost (last) letter outwards, G(a, w; x) = ∫_0^x dt/(t-a) G(w; t).
+    series: Dict[int, List[Fraction]] = {0: [Fraction(1)] + [Fraction(0)] * order}
+    for letter in reversed(word):
+        new: Dict[int, List[Fraction]] = {}
+
+        def slot(k: int) -> List[Fraction]:
+            if k not in new:
+                new[k] = [Fraction(0)] * (order + 1)
+            return new[k]
+
+        for k, coeffs in series.items():
+            if letter == 0:
+                # m = 0: ∫_0^x dt/t L^k/k! = L^(k+1)/(k+1)! (tangential base point);
+                # m ≥ 1: ∫_0^x t^(m-1) L^k/k! dt = x^m Σ_j (-1)^j L^(k-j)/((k-j)! m^(j+1)).
+                if coeffs[0]:
+                    slot(k + 1)[0] += coeffs[0]
+                for m in range(1, order + 1):
+                    g = coeffs[m]
+                    if not g:
+                        continue
+                    for j in range(k + 1):
+                        slot(k - j)[m] += g * Fraction((-1) ** j, m ** (j + 1))
+            elif letter == 1:
+                # 1/(t-1) = -Σ_r t^r:  ∫_0^x dt/(t-1) t^m L^k/k!
+                #   = -Σ_{M > m} x^M Σ_j (-1)^j L^(k-j)/((k-j)! M^(j+1)),
+                # so the coefficient at x^M needs the prefix sum of coeffs[m < M].
+                prefix = Fraction(0)
+                for M in range(1, order + 1):
+                    prefix += coeffs[M - 1]
+                    if not prefix:
+                        continue
+                    for j in range(k + 1):
+                        slot(k - j)[M] -= prefix * Fraction((-1) ** j, M ** (j + 1))
+            else:
+                raise InputError(f"letters of words are 0 and 1, got {letter!r}")
+        series = {k: v for k, v in new.items() if any(v)}
+    return tuple((k, tuple(v)) for k, v in sorted(series.items()))
+
+
+def g_series_at_zero(word: Sequence[int], order: int) -> Dict[int, List[Fraction]]:
+    """``G(word; x) = Σ_k Σ_{m ≤ order} c[k][m] x^m log(x)^k/k! + O(x^(order+1) log^K x)``.
+
+    The iterated integrals are taken from the tangential base point at 0
+    (``G(0^n; x) = log(x)^n/n!``), the regularization of
+    :mod:`lowenergy.words`; all coefficients are rational.
+
+    Parameters
+    ----------
+    word:
+        Letters 0 and 1.
+    order:
+        Highest power of x kept.
+
+    Returns
+    -------
+    dict
+        ``{k: [c[k][0], ..., c[k][order]]}`` (only non-zero k).
+
+    Examples
+    --------
+    >>> g_series_at_zero((1,), 3)[0]          # log(1-x) = -x - x^2/2 - x^3/3
+    [Fraction(0, 1), Fraction(-1, 1), Fraction(-1, 2), Fraction(-1, 3)]
+    >>> sorted(g_series_at_zero((0, 0), 1))   # log(x)^2/2 only
+    [2]
+    """
+    if not isinstance(order, int) or order < 0:
+        raise InputError(f"the order of a series must be a non-negative integer, got {order!r}")
+    return {k: list(v) for k, v in _g_series_cached(tuple(int(a) for a in word), order)}
+
+
+def _binomial_series(shift: int, coeff: Fraction, order: int) -> List[List[Fraction]]:
+    """Coefficients of ``(1-x)^(shift + coeff·z)``: entry m is the polynomial
+    ``(-1)^m binom(B, m) = Π_{i<m} (i - B)/(i + 1)`` in z (list by power of z)."""
+    out = [[Fraction(1)]]
+    cur = [Fraction(1)]
+    for i in range(order):
+        # multiply by (i - shift - coeff·z)/(i + 1)
+        nxt = [Fraction(0)] * (len(cur) + 1)
+        for p, c in enumerate(cur):
+            if not c:
+                continue
+            nxt[p] += c * (i - shift) / (i + 1)
+            nxt[p + 1] -= c * coeff / (i + 1)
+        while len(nxt) > 1 and not nxt[-1]:
+            nxt.pop()
+        cur = nxt
+        out.append(cur)
+    return out
+
+
+# ---------------------------------------------------------------------------
+# polynomial helpers on plain dicts
+# ---------------------------------------------------------------------------
+
+def _padd(target: Dict, key, value: MZV) -> None:
+    y = target.get(key, MZV()) + value
+    if y:
+        target[key] = y
+    else:
+        target.pop(key, None)
+
+
+def _taylor_shift(poly: Poly, index: int, point: Fraction) -> Dict[int, Poly]:
+    """``poly`` with variable ``index`` replaced by ``point + ε``: ``{r: coefficient of ε^r}``."""
+    out: Dict[int, Poly] = {}
+    for key, value in poly.items():
+        e = key[index]
+        rest = key[:index] + (0,) + key[index + 1 :]
+        for r in range(e + 1):
+            factor = math.comb(e, r) * point ** (e - r)
+            if factor:
+                _padd(out.setdefault(r, {}), rest, value * factor)
+    return {r: p for r, p in out.items() if p}
+
+
+def poly_text(
+    rpoly: ResiduePoly,
+    variable: str = "t",
+    parameters: Sequence[str] = (),
+    style: str = "plain",
+) -> str:
+    """A residue polynomial as text, highest power first.
+
+    ``style="plain"`` uses the package's input syntax, ``"latex"`` LaTeX.
+
+    >>> poly_text({2: {(): MZV.rational(Fraction(-1, 2))}, 0: {(): MZV.one()}})
+    '-1/2*t^2 + 1'
+    """
+    latex = style == "latex"
+    pieces: List[str] = []
+    for power in sorted(rpoly, reverse=True):
+        for pkey in sorted(rpoly[power], reverse=True):
+            coef = rpoly[power][pkey]
+            if not coef:
+                continue
+            factors = []
+            if power:
+                factors.append(variable if power == 1 else (f"{variable}^{{{power}}}" if latex else f"{variable}^{power}"))
+            for name, e in zip(parameters, pkey):
+                if e:
+                    factors.append(name if e == 1 else (f"{name}^{{{e}}}" if latex else f"{name}^{e}"))
+            mono = (" " if latex else "*").join(factors)
+            text = coef.to_text(style="latex" if latex else "plain")
+            negative = False
+            if coef.is_rational():
+                q = coef.rational_value()
+                negative = q < 0
+                if negative:
+                    text = (-coef).to_text(style="latex" if latex else "plain")
+                if mono and abs(q) == 1:
+                    text = ""
+            elif len(list(coef.terms())) > 1:
+                text = f"({text})"
+            body = text + ((" " if latex else "*") if text and mono else "") + mono
+            pieces.append(("-" if negative else "+", body or "1"))
+    if not pieces:
+        return "0"
+    out = ("-" if pieces[0][0] == "-" else "") + pieces[0][1]
+    for sign, body in pieces[1:]:
+        out += f" {sign} {body}"
+    return out
+
+
+# ---------------------------------------------------------------------------
+# the table
+# ---------------------------------------------------------------------------
+
+@dataclass
+class ResidueTable:
+    """Exact pole parts of an integral at ``s = p`` and ``t = p``.
+
+    Attributes
+    ----------
+    variables, parameters:
+        Names, from the integrand.
+    levels:
+        Every pole with ``|location| ≤ levels`` is present.
+    poles:
+        ``{(var, location): {order m: R_m}}`` with var 0 (s) or 1 (t), location a
+        Fraction and ``R_m`` a :data:`ResiduePoly` in the other variable and
+        the parameters; the pole part is ``Σ_m R_m/(var - location)^m``.
+    title, source:
+        From the integrand.
+    """
+
+    variables: Tuple[str, str]
+    parameters: Tuple[str, ...]
+    levels: int
+    poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]]
+    title: str = ""
+    source: str = ""
+    meta: dict = field(default_factory=dict)
+
+    # -- lookup -------------------------------------------------------------------
+    def var_index(self, var: VarSpec) -> int:
+        """0 or 1 for a variable given by index or by name."""
+        if isinstance(var, str):
+            if var not in self.variables:
+                raise InputError(f"unknown variable {var!r}", hint=f"use one of {list(self.variables)}")
+            return self.variables.index(var)
+        if var not in (0, 1):
+            raise InputError(f"variables are 0 (first) or 1 (second), got {var!r}")
+        return var
+
+    def locations(self, var: VarSpec = 0) -> List[Fraction]:
+        """Sorted pole locations of one variable."""
+        v = self.var_index(var)
+        return sorted(p for (w, p) in self.poles if w == v)
+
+    def pole(self, location, var: VarSpec = 0) -> Dict[int, ResiduePoly]:
+        """``{order: R_m}`` at ``var = location`` (``{}`` if there is no pole)."""
+        v = self.var_index(var)
+        p = Fraction(location)
+        if abs(p) > self.levels:
+            raise InputError(
+                f"location {p} is beyond the {self.levels} levels of this table",
+                hint=f"compute residues(integrand, {math.ceil(abs(p))}) or more",
+            )
+        return {m: dict(r) for m, r in self.poles.get((v, p), {}).items()}
+
+    def coefficient(self, location, order: int = 1, var: VarSpec = 0) -> ResiduePoly:
+        """``R_order`` at ``var = location`` ({} if zero)."""
+        return self.pole(location, var).get(order, {})
+
+    def residue(self, location, var: VarSpec = 0) -> ResiduePoly:
+        """The residue ``R_1`` (coefficient of the simple pole)."""
+        return self.coefficient(location, 1, var)
+
+    def max_order(self, location, var: VarSpec = 0) -> int:
+        """Highest pole order at ``var = location`` (0: no pole)."""
+        return max(self.pole(location, var), default=0)
+
+    def univariate(self, location, order: int = 1, var: VarSpec = 0,
+                   params: Tuple[int, ...] | None = None) -> Dict[int, MZV]:
+        """``R_order`` as ``{power: MZV}`` for one parameter monomial (default: the constant one)."""
+        key = tuple(params) if params is not None else (0,) * len(self.parameters)
+        out: Dict[int, MZV] = {}
+        for power, pp in self.coefficient(location, order, var).items():
+            if key in pp:
+                out[power] = pp[key]
+        return out
+
+    def residue_text(self, location, order: int = 1, var: VarSpec = 0, style: str = "plain") -> str:
+        v = self.var_index(var)
+        return poly_text(self.coefficient(location, order, v), self.variables[1 - v], self.parameters, style)
+
+    # -- transformations ------------------------------------------------------------
+    def divided(self, factor: Mapping[int, Union[int, Fraction]], var: VarSpec = 0,
+                strict: bool = True) -> "ResidueTable":
+        """Pole parts in ``var`` of ``I / f``, f a polynomial in the *other* variable.
+
+        If ``I(s, t) = f(t) · V(s, t)`` the poles of V in s are those of I
+        divided by f(t), order by order.  ``factor`` is ``{power: rational}``;
+        the division must be exact (a factor of ``t`` needs residues vanishing
+        at ``t = 0``), else :class:`~lowenergy.errors.InputError`; with
+        ``strict=False`` such locations are left out instead and listed in
+        ``meta["not_divisible"]`` (e.g. the massless pole ``s = 0`` of
+        ``Γ(-s)Γ(-t)/Γ(1-s-t)``, whose residue ``-1/t`` is no polynomial).  The result
+        holds the poles in ``var`` only: those in the other variable would
+        need the Laurent expansion of ``1/f`` and are dropped.
+
+        >>> from lowenergy.integrand.model import Integrand, Term, LinearExponent
+        >>> i = Integrand([Term({(0, 0): MZV.one()}, LinearExponent(-1, Fraction(-1), 0),
+        ...                     LinearExponent(0, Fraction(-1), 1))])   # = -t Γ(-s)Γ(-t)/Γ(1-s-t)
+        >>> v = residues(i, 3).divided({1: -1}, strict=False)
+        >>> v.residue_text(3)                                           # (t+1)(t+2)/3!
+        '1/6*t^2 + 1/2*t + 1/3'
+        >>> v.meta["not_divisible"]                                     # s = 0: -1/t
+        [Fraction(0, 1)]
+        """
+        v = self.var_index(var)
+        f = {int(k): Fraction(c) for k, c in factor.items() if c}
+        if not f:
+            raise InputError("division by the zero polynomial")
+        top = max(f)
+        lead = f[top]
+        poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]] = {}
+        skipped: List[Fraction] = []
+        for (w, p), orders in sorted(self.poles.items()):
+            if w != v:
+                continue
+            new_orders: Dict[int, ResiduePoly] = {}
+            divisible = True
+            for m, rpoly in orders.items():
+                rem = {k: dict(pp) for k, pp in rpoly.items()}
+                quot: ResiduePoly = {}
+                while rem and max(rem) >= top:
+                    d = max(rem)
+                    qc = {pk: c / lead for pk, c in rem[d].items()}
+                    quot[d - top] = qc
+                    for fk, fc in f.items():
+                        slot = rem.setdefault(d - top + fk, {})
+                        for pk, c in qc.items():
+                            _padd(slot, pk, -(c * fc))
+                        if not slot:
+                            del rem[d - top + fk]
+                if rem and not strict:
+                    divisible = False
+                    break
+                if rem:
+                    raise InputError(
+                        f"the pole part of order {m} at {self.variables[v]} = {p} is not divisible by the factor",
+                        hint="divide only by factors of the residues (e.g. -t for x^(-s-1)(1-x)^(-t))",
+                    )
+                if quot:
+                    new_orders[m] = quot
+            if not divisible:
+                skipped.append(p)
+            elif new_orders:
+                poles[(w, p)] = new_orders
+        return ResidueTable(self.variables, self.parameters, self.levels, poles, title=self.title,
+                            source=self.source, meta=dict(self.meta, divided=f, not_divisible=skipped))
+
+    # -- tables ----------------------------------------------------------------
+    def to_rows(self, digits: int = 15) -> List[Dict[str, object]]:
+        """One row per (variable, location, order, power of the other variable, parameter monomial).
+
+        Columns: ``variable``, ``location``, ``order``, ``power`` (of the other
+        variable), ``param``, ``exact`` (plain text), ``numeric`` (decimal
+        string, ``digits`` significant digits).
+        """
+        rows: List[Dict[str, object]] = []
+        for (v, p) in sorted(self.poles):
+            for m in sorted(self.poles[(v, p)], reverse=True):
+                rpoly = self.poles[(v, p)][m]
+                for power in sorted(rpoly):
+                    for pkey in sorted(rpoly[power]):
+                        coef = rpoly[power][pkey]
+                        rows.append({
+                            "variable": self.variables[v],
+                            "location": _fraction_text(p),
+                            "order": m,
+                            "power": power,
+                            "param": _param_text(pkey, self.parameters),
+                            "exact": coef.to_text(),
+                            "numeric": _numeric_text(coef, digits),
+                        })
+        return rows
+
+    def to_dataframe(self, digits: int = 15):
+        """The rows of :meth:`to_rows` as a pandas DataFrame."""
+        import pandas
+
+        return pandas.DataFrame(self.to_rows(digits), columns=_RESIDUE_COLUMNS)
+
+    def write(self, path, fmt: Optional[str] = None, digits: int = 15) -> Path:
+        """Write the rows as CSV, JSON or LaTeX (format from ``fmt`` or the suffix)."""
+        return write_rows(self.to_rows(digits), path, fmt, columns=_RESIDUE_COLUMNS,
+                          caption=f"Pole parts: {self.title or self.source}")
+
+
+_RESIDUE_COLUMNS = ["variable", "location", "order", "power", "param", "exact", "numeric"]
+
+
+def _fraction_text(q: Fraction) -> str:
+    return str(q.numerator) if q.denominator == 1 else f"{q.numerator}/{q.denominator}"
+
+
+def _param_text(pkey: Tuple[int, ...], names: Sequence[str]) -> str:
+    parts = [n if e == 1 else f"{n}^{e}" for n, e in zip(names, pkey) if e]
+    return "*".join(parts) or "1"
+
+
+def _numeric_text(coef: MZV, digits: int) -> str:
+    import mpmath
+
+    if coef.is_rational():
+        q = coef.rational_value()
+        with mpmath.workdps(digits):
+            return mpmath.nstr(mpmath.mpf(q.numerator) / q.denominator, digits)
+    with mpmath.workdps(digits):
+        return mpmath.nstr(coef.numeric(digits), digits)
+
+
+# ---------------------------------------------------------------------------
+# simple writers (shared with the partial-wave tables)
+# ---------------------------------------------------------------------------
+
+_LATEX_SPECIAL = {"\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#",
+                  "_": r"\_", "{": r"\{", "}": r"\}", "~": r"\textasciitilde{}", "^": r"\^{}"}
+
+
+def _latex_escape(text: str) -> str:
+    return "".join(_LATEX_SPECIAL.get(c, c) for c in text)
+
+
+def write_rows(rows: List[Dict[str, object]], path, fmt: Optional[str] = None,
+               columns: Optional[Sequence[str]] = None, caption: str = "") -> Path:
+    """Write table rows to ``path`` as ``csv``, ``json`` or ``latex`` (``tex``).
+
+    The text is built first and moved into place atomically, so a failure
+    never leaves a partial file.  Returns the path.
+    """
+    path = Path(path)
+    fmt = (fmt or path.suffix.lstrip(".")).lower()
+    cols = list(columns) if columns is not None else (list(rows[0]) if rows else [])
+    if fmt == "csv":
+        buf = io.StringIO()
+        writer = csv.writer(buf, lineterminator="\n")
+        writer.writerow(cols)
+        for row in rows:
+            writer.writerow([row.get(c, "") for c in cols])
+        text = buf.getvalue()
+    elif fmt == "json":
+        text = json.dumps({"columns": cols, "rows": [{c: row.get(c) for c in cols} for row in rows]},
+                          indent=1, ensure_ascii=False) + "\n"
+    elif fmt in ("latex", "tex"):
+        lines = [r"\begin{tabular}{" + "l" * len(cols) + "}", r"\hline",
+                 " & ".join(_latex_escape(c) for c in cols) + r" \\", r"\hline"]
+        for row in rows:
+            lines.append(" & ".join(_latex_escape(str(row.get(c, ""))) for c in cols) + r" \\")
+        lines += [r"\hline", r"\end{tabular}"]
+        if caption:
+            lines.insert(0, "% " + caption.replace("\n", " "))
+        text = "\n".join(lines) + "\n"
+    else:
+        raise InputError(f"unknown table format {fmt!r}", hint="use csv, json or latex (.csv, .json, .tex)")
+    directory = path.parent if str(path.parent) else Path(".")
+    fd, tmp = tempfile.mkstemp(dir=directory, prefix=".tmp-", suffix=path.suffix)
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8") as handle:
+            handle.write(text)
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+    return path
+
+
+# ---------------------------------------------------------------------------
+# the computation
+# ---------------------------------------------------------------------------
+
+def _m_range(shift: int, coeff: Fraction, levels: int) -> range:
+    """Powers m whose pole location ``-(shift + m + 1)/coeff`` lies in [-levels, levels]."""
+    span = levels * abs(coeff)
+    hi = math.floor(span) - shift - 1
+    lo = max(0, math.ceil(-span) - shift - 1)
+    return range(lo, hi + 1)
+
+
+def _endpoint_poles(
+    coefficient: Poly,
+    near,            # LinearExponent of the end point (x at 0, or 1-x at 1 after x -> 1-x)
+    far,             # LinearExponent of the other factor, which becomes (1-y)^far
+    words: Dict[Tuple[int, ...], MZV],
+    levels: int,
+    nvars: int,
+    out: Dict[Tuple[int, Fraction], Dict[int, Poly]],
+) -> None:
+    if near.var is None:
+        # no expansion variable: only a check that the end point converges
+        top = -near.shift - 1
+        if top < 0:
+            return
+        m_values = range(0, top + 1)
+    else:
+        m_values = _m_range(near.shift, near.coeff, levels)
+    if not m_values:
+        return
+    order = m_values[-1]
+    binom = _binomial_series(far.shift, far.coeff, order)
+    # E_{m,k}(z) = Σ_u c_u Σ_{m'} binom_{m'}(z) g^u_{k, m-m'}: rational work first,
+    # one multiplication by the MZV c_u per (u, m, k).
+    expansions: Dict[Tuple[int, int], Poly] = {}
+    for u, cu in words.items():
+        series = g_series_at_zero(u, order)
+        for k, g in series.items():
+            for m in m_values:
+                acc: List[Fraction] = []
+                for mp in range(m + 1):
+                    gc = g[m - mp]
+                    if not gc:
+                        continue
+                    b = binom[mp]
+                    if len(acc) < len(b):
+                        acc.extend([Fraction(0)] * (len(b) - len(acc)))
+                    for power, bc in enumerate(b):
+                        if bc:
+                            acc[power] += bc * gc
+                if not any(acc):
+                    continue
+                slot = expansions.setdefault((m, k), {})
+                for power, value in enumerate(acc):
+                    if not value:
+                        continue
+                    key = [0] * nvars
+                    if far.var is not None:
+                        key[far.var] = power
+                    elif power:
+                        raise AssertionError("binomial series without variable has degree 0")
+                    _padd(slot, tuple(key), cu * value)
+    for (m, k), poly in expansions.items():
+        full: Poly = {}
+        for ka, va in coefficient.items():
+            for kb, vb in poly.items():
+                _padd(full, tuple(x + y for x, y in zip(ka, kb)), va * vb)
+        if not full:
+            continue
+        if near.var is None:
+            raise InputError(
+                "the integral diverges at an end point for all values of the expansion variables",
+                hint="a factor x^(-1) or (1-x)^(-1) (or a more negative power) needs an expansion "
+                "variable in its exponent, e.g. x^(-s-1)",
+            )
+        c = near.coeff
+        p = Fraction(-(near.shift + m + 1)) / c
+        if abs(p) > levels:
+            continue
+        scale = Fraction((-1) ** k) / c ** (k + 1)
+        for r, part in _taylor_shift(full, near.var, p).items():
+            j = k + 1 - r
+            if j < 1:
+                continue
+            slot = out.setdefault((near.var, p), {}).setdefault(j, {})
+            for key, value in part.items():
+                _padd(slot, key, value * scale)
+
+
+def residues(integrand: Integrand, levels: int, *, store: TableStore | None = None) -> ResidueTable:
+    """Exact pole parts of ``∫_0^1 (integrand) dx`` at ``s = p`` and ``t = p``, ``|p| ≤ levels``.
+
+    Parameters
+    ----------
+    integrand:
+        See :mod:`lowenergy.integrand.model`; words of any length, any
+        integer shifts, rational coefficients of s and t in the exponents,
+        free parameters (the pole coefficients are polynomials in them).
+    levels:
+        Keep the poles with ``|location| ≤ levels`` (for ``x^(-s-1)``: the
+        massless pole and the massive levels ``s = 1..levels``).
+    store:
+        MZV tables (default: the user's cache); needed for the end point
+        ``x = 1`` when words carry regularized values there.
+
+    Returns
+    -------
+    ResidueTable
+
+    Raises
+    ------
+    InputError
+        For a negative ``levels`` or an integral that diverges at an end
+        point whatever s and t (e.g. ``x^(-1)`` with no variable).
+    """
+    if not isinstance(levels, int) or isinstance(levels, bool) or levels < 0:
+        raise InputError(f"levels must be a non-negative integer, got {levels!r}")
+    store = store or default_store()
+    nvars = integrand.nvars
+    raw: Dict[Tuple[int, Fraction], Dict[int, Poly]] = {}
+    for term in integrand.terms:
+        term: Term
+        if not term.coefficient:
+            continue
+        word = tuple(term.word)
+        try:
+            # x -> 0
+            _endpoint_poles(term.coefficient, term.x_exp, term.y_exp, {word: MZV.one()}, levels, nvars, raw)
+            # x -> 1, after x -> 1 - x: (1-y)^(x_exp) y^(y_exp) G(word; 1-y)
+            flipped = g_of_one_minus_x(word, store=store) if word else {(): MZV.one()}
+            _endpoint_poles(term.coefficient, term.y_exp, term.x_exp, flipped, levels, nvars, raw)
+        except InputError as err:
+            raise err.located(source=integrand.source, line=term.source_line, term=term.text)
+    poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]] = {}
+    for (v, p), orders in raw.items():
+        other = 1 - v
+        conv: Dict[int, ResiduePoly] = {}
+        for m, poly in orders.items():
+            rp: ResiduePoly = {}
+            for key, value in poly.items():
+                if value:
+                    rp.setdefault(key[other], {})[tuple(key[2:])] = value
+            if rp:
+                conv[m] = rp
+        if conv:
+            poles[(v, p)] = conv
+    return ResidueTable(
+        variables=tuple(integrand.variables),
+        parameters=tuple(integrand.parameters),
+        levels=levels,
+        poles=poles,
+        title=integrand.title,
+        source=integrand.source,
+    )
