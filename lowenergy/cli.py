@@ -365,6 +365,60 @@ def fix(
 
 @app.command()
 @user_errors
+def residues(
+    file: str = typer.Argument(..., help="integrand file (TOML)"),
+    levels: int = typer.Option(..., "--levels", help="poles at s = n and t = n for |n| <= LEVELS"),
+    waves: bool = typer.Option(False, "--waves", help="Gegenbauer partial waves of the simple poles in s"),
+    dim: str = typer.Option("10", "--dim", help="space-time dimension D for --waves (rational)"),
+    sign: int = typer.Option(1, "--sign", help="+1: decompose Res, -1: decompose -Res (see README)"),
+    csv: Optional[str] = typer.Option(None, "--csv", help="write the residue (or wave) table as CSV"),
+    as_json: bool = typer.Option(False, "--json", help="print the rows as JSON"),
+    plot: Optional[str] = typer.Option(None, "--plot", help="with --waves: spectrum plot (PNG)"),
+    digits: int = typer.Option(15, "--digits", help="digits of the numeric column"),
+) -> None:
+    """Exact pole coefficients at the massive levels (and partial waves)."""
+    from fractions import Fraction
+
+    from .errors import InputError
+    from .integrand.reader import read_integrand
+    from .spectrum import partial_waves, residues as find_residues
+
+    _check_digits(digits)
+    if levels < 0 or levels > 200:
+        raise InputError(f"--levels must be between 0 and 200, got {levels}")
+    try:
+        dimension = Fraction(dim)
+    except (ValueError, ZeroDivisionError):
+        raise InputError(f"--dim must be a rational number, got {dim!r}") from None
+    if sign not in (1, -1):
+        raise InputError("--sign must be 1 or -1")
+    if plot and not waves:
+        raise InputError("--plot needs --waves")
+    integrand = read_integrand(file)
+    table = find_residues(integrand, levels)
+    result = partial_waves(table, dimension, sign=sign) if waves else table
+    rows = result.to_rows(digits=digits) if hasattr(result, "to_rows") else result.to_dataframe(digits).to_dict("records")
+    if plot:
+        from .spectrum.plots import plot_spectrum
+
+        plot_spectrum(result, plot)
+    if csv:
+        result.write(csv, "csv", digits=digits)
+    if as_json:
+        typer.echo(json.dumps(rows, default=str))
+    else:
+        df = result.to_dataframe(digits)
+        typer.echo(df.to_string(index=False))
+        if waves:
+            neg = [r for r in rows if str(r.get("negative", "")).lower() in ("yes", "true", "1")]
+            typer.echo(f"{len(neg)} negative partial-wave coefficient(s)" + (" (unitarity violation)" if neg else ""))
+    for path in (csv, plot):
+        if path:
+            typer.echo(f"wrote {path}", err=True)
+
+
+@app.command()
+@user_errors
 def demo() -> None:
     """Build the tables to weight 12 if needed and show a few reductions."""
     from .zeta.expression import evaluate

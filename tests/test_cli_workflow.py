@@ -100,3 +100,19 @@ def test_check_bad_constraint_file(tmp_path):
     f.write_text('title = "x"\n[[constraint]]\nname = "a"\nrelation = "c[1,1"\nkind = "="\nrhs = "0"\n')
     res = run("check", EX / "open_superstring.toml", f)
     assert res.exit_code == 2 and "Traceback" not in res.stderr
+
+
+def test_residues_command(tmp_path):
+    # x^(-s-1)(1-x)^(-t): residue at s = 1 is -t (from Γ(-s) with Γ(1-t)/Γ(-t) = -t; A&S 6.1.3)
+    f = tmp_path / "v.toml"
+    f.write_text('integrand = "x^(-s-1)*(1-x)^(-t)"\n')
+    res = run("residues", f, "--levels", 2, "--json")
+    assert res.exit_code == 0, res.stderr
+    rows = json.loads(res.stdout)
+    at1 = [r for r in rows if r["variable"] == "s" and r["location"] == "1"]
+    assert [(r["power"], r["exact"]) for r in at1] == [(1, "-1")]
+    png = tmp_path / "spec.png"
+    res = run("residues", f, "--levels", 3, "--waves", "--dim", "11", "--sign", "-1", "--plot", png)
+    assert res.exit_code == 0 and png.read_bytes()[:4] == b"\x89PNG"
+    assert "negative partial-wave coefficient(s) (unitarity violation)" in res.stdout
+    assert run("residues", f, "--levels", 2, "--plot", png).exit_code == 2
