@@ -60,7 +60,7 @@ def test_reduce_pi_display():
         ("zeta(3)/zeta(2)", "non-rational"),
         ("pi^3", "odd power of pi"),
         ("sin(3)", "unknown function"),
-        ("zeta(7,7)", "lowenergy tables build --weight 14"),
+        ("zeta(8,7)", "lowenergy tables build --weight 15"),
         ("import os", "column"),
         ("__import__('os')", "column"),
     ],

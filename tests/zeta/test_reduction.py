@@ -173,12 +173,12 @@ def test_regularized_values():
     assert g_value((1, 0)) == zeta(2)
 
 
-def test_weight_14_table_absent_message():
+def test_weight_beyond_table_message():
     from lowenergy.errors import TableError
 
     with pytest.raises(TableError) as err:
-        zeta(7, 7)
-    assert "lowenergy tables build --weight 14" in str(err.value)
+        zeta(8, 7)
+    assert "lowenergy tables build --weight 15" in str(err.value)
 
 
 # --- property tests (hypothesis) -------------------------------------------
