@@ -37,6 +37,8 @@ in the file):
   (``x^s*x^t`` is refused);
 * ``log(x)``, ``log(1-x)``, ``Li(n, x)``, ``Li(n, 1-x)`` (integer ``n ≥ 1``),
   ``G(a1, ..., an; x)`` and ``G(a1, ..., an; 1-x)`` (letters 0 and 1);
+  ``Lsv(a1, ..., an; x)``: Brown's single-valued polylogarithm L_w restricted
+  to 0 < x < 1 (z = z̄ = x), weight ≤ 8 (:mod:`lowenergy.svpolylog`);
 * products and non-negative integer powers of all these; products of sums
   are expanded.
 
@@ -128,7 +130,10 @@ ALLOWED_KEYS = (
     "provenance",
 )
 #: Names that may not be used for variables or parameters.
-RESERVED_NAMES = frozenset({"zeta", "pi", "G", "Li", "log"})
+RESERVED_NAMES = frozenset({"zeta", "pi", "G", "Li", "log", "Lsv"})
+
+# Single-valued polylogarithms L_w(x) (Brown 2004) are available to this weight.
+MAX_SV_WEIGHT = 8
 #: Largest absolute value of an integer power, of the integer part of an
 #: exponent of x or 1-x, and of the coefficient of s or t in such an exponent.
 MAX_EXPONENT = 64
@@ -1020,15 +1025,36 @@ class _Evaluator:
             if kind is None:
                 raise self.fail(arg, f"G is supported only at {x}, 1-{x} and 1", f"write G(0,1; {x})")
             return self.word_value(tuple(letters), kind, node)
+        if name == "Lsv":
+            if node.letters is None or len(node.args) != 1:
+                raise self.fail(node, "Lsv needs letters, ';' and the argument", f"write Lsv(0,1; {x})")
+            letters = []
+            for a in node.letters:
+                if not isinstance(a, Num) or a.value not in (0, 1):
+                    raise self.fail(a, "letters of Lsv must be 0 or 1", f"write e.g. Lsv(0,1; {x})")
+                letters.append(int(a.value))
+            if len(letters) > MAX_SV_WEIGHT:
+                raise self.fail(node, f"single-valued polylogarithms are built up to weight {MAX_SV_WEIGHT}")
+            if self.x_argument(node.args[0]) != "x":
+                raise self.fail(node.args[0], f"Lsv is supported only at {x}", f"write Lsv(0,1; {x})")
+            from ..svpolylog.construct import real_line_restriction
+
+            try:
+                if letters:
+                    require_weight(len(letters), self.store)
+                combination = real_line_restriction(tuple(letters), store=self.store)
+            except LowEnergyError as err:
+                raise err.located(column=node.col, term=_node_text(node))
+            return self.words(combination)
         if name == x or name in self.names or name == "pi":
             raise self.fail(node, f"'{name}' is not a function", f"write {name}*(...) for a product")
-        known = ["zeta", "log", "Li", "G"]
+        known = ["zeta", "log", "Li", "G", "Lsv"]
         aliases = {"ln": f"log({x})", "Li2": f"Li(2, {x})", "Li3": f"Li(3, {x})", "polylog": f"Li(2, {x})"}
         if name in aliases:
             hint = f"write {aliases[name]}"
         else:
             close = difflib.get_close_matches(name, known, n=1, cutoff=0.5)
-            hint = (f"did you mean '{close[0]}'? " if close else "") + "known functions: zeta, log, Li, G"
+            hint = (f"did you mean '{close[0]}'? " if close else "") + "known functions: zeta, log, Li, G, Lsv"
         raise self.fail(node, f"unknown function '{_short(name, 40)}'", hint)
 
     def word_value(self, word: Tuple[int, ...], kind: str, node: Node, factor: int = 1) -> _Value:
