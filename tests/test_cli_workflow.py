@@ -116,3 +116,20 @@ def test_residues_command(tmp_path):
     assert res.exit_code == 0 and png.read_bytes()[:4] == b"\x89PNG"
     assert "negative partial-wave coefficient(s) (unitarity violation)" in res.stdout
     assert run("residues", f, "--levels", 2, "--plot", png).exit_code == 2
+
+
+@pytest.mark.parametrize(
+    "expr, needle",
+    [
+        ("x^(-s-2)*(1-x)^(-t-1)", "negative shifts are not supported"),
+        ("x^(-1)*(1-x)^(-t-1)", "diverges at x = 0"),
+        ("x^(-s-1)*(1-x)^(-1)", "diverges at x = 1"),
+    ],
+)
+def test_engine_refuses_clearly(tmp_path, expr, needle):
+    f = tmp_path / "i.toml"
+    f.write_text(f'integrand = "{expr}"\n')
+    out = tmp_path / "o.csv"
+    res = run("expand", f, "--order", 3, "--csv", out)
+    assert res.exit_code == 2 and needle in res.stderr and "i.toml" in res.stderr
+    assert not out.exists()
