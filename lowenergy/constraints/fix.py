@@ -29,8 +29,10 @@ fractions), and the outcome is one of
     to the expansion's order can fix;
 ``"inconsistent"``
     no parameter values satisfy all equalities;
-    :attr:`~FixReport.conflict` is a minimal set of constraints that conflict
-    (found by deletion filtering: dropping any one of them leaves a
+    :attr:`~FixReport.conflict` is a smallest set of constraints that conflict
+    (exhaustive search by size after deletion filtering, for systems of
+    moderate size; otherwise the minimal set from deletion filtering:
+    dropping any one of them leaves a
     consistent system; it is minimal, not necessarily of smallest size).
 
 Constraints that are inequalities or have a numeric ``rhs_value`` do not
@@ -146,14 +148,36 @@ def _consistent(rows: Sequence[Row], n: int) -> bool:
     return n not in pivots
 
 
+SMALLEST_CONFLICT_BUDGET = 20000
+
+
 def _minimal_conflict(groups: Dict[str, List[Row]], n: int) -> Tuple[str, ...]:
-    """Deletion filter: a minimal inconsistent subset of the groups."""
+    """A smallest inconsistent subset of the groups (minimal if the search is too big).
+
+    Deletion filtering gives a minimal set (dropping any member leaves a
+    consistent system) of some size m; then all subsets of sizes 1..m-1 are
+    tried in order, so the first inconsistent one found has the smallest
+    possible size.  If that would need more than SMALLEST_CONFLICT_BUDGET
+    consistency checks the minimal set is returned as it is.
+    """
+    from itertools import combinations
+    from math import comb
+
     current = list(groups)
     for name in list(current):
         trial = [x for x in current if x != name]
         rows = [row for x in trial for row in groups[x]]
         if not _consistent(rows, n):
             current = trial
+    names = list(groups)
+    budget = sum(comb(len(names), k) for k in range(1, len(current)))
+    if budget > SMALLEST_CONFLICT_BUDGET:
+        return tuple(current)
+    for k in range(1, len(current)):
+        for subset in combinations(names, k):
+            rows = [row for x in subset for row in groups[x]]
+            if not _consistent(rows, n):
+                return tuple(subset)
     return tuple(current)
 
 
@@ -280,7 +304,7 @@ class FixReport:
             if self.unfixable:
                 lines.append("not fixed by any coefficient up to this order: " + ", ".join(self.unfixable))
         if self.conflict:
-            lines.append("conflicting constraints (minimal set): " + ", ".join(self.conflict))
+            lines.append("conflicting constraints (smallest set found): " + ", ".join(self.conflict))
         if self.check is not None:
             s = self.check.summary
             lines.append(f"check at the solution: {s['PASS']} passed, {s['FAIL']} failed, "

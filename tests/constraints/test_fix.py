@@ -137,6 +137,17 @@ def test_conflicting_pair_is_reported():
         substitute(e, report)
 
 
+def test_conflict_is_smallest_not_just_minimal():
+    # c[0,0] = a, c[1,0] = b.  {P1, P2, P3} (a = 0, b = 0, a + b = 1) is a minimal
+    # conflict -- deletion filtering in file order finds it -- but {P4, P1}
+    # (a = 1 and a = 0) is smaller; the report must give the smaller one.
+    e = expansion({(0, 0): {(1, 0): 1}, (1, 0): {(0, 1): 1}}, parameters=("a", "b"), order=1)
+    cs = cset(eq("P4", "c[0,0]", 1), eq("P1", "c[0,0]", 0), eq("P2", "c[1,0]", 0), eq("P3", "c[0,0] + c[1,0]", 1))
+    report = fix(e, cs)
+    assert report.status == INCONSISTENT
+    assert sorted(report.conflict) == ["P1", "P4"]
+
+
 def test_conflict_is_minimal_with_the_engine(three_terms):
     base = read_constraints(OPEN_SET)
     wrong = cset(eq("wrong c[0,1]", "c[0,1]", "2*zeta(2)"))  # forces a1 = 2, but c[-1,0] = -a1 = -1
