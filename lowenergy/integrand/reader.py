@@ -957,8 +957,9 @@ class _Evaluator:
             return {(_ZERO_EXP, _ZERO_EXP, ()): {(0, tuple(exps), ()): Fraction(1)}}
         if name == "pi":
             return self.const(MZV.one(), pi=1)
-        if name in ("zeta", "G", "Li", "log"):
-            example = {"zeta": "zeta(3)", "G": f"G(0,1; {self.xname})", "Li": f"Li(2, {self.xname})"}
+        if name in ("zeta", "G", "Li", "log", "Lsv"):
+            example = {"zeta": "zeta(3)", "G": f"G(0,1; {self.xname})", "Li": f"Li(2, {self.xname})",
+                       "Lsv": f"Lsv(0,1; {self.xname})"}
             raise self.fail(
                 node,
                 f"'{name}' is a function",
