@@ -133,3 +133,10 @@ def test_engine_refuses_clearly(tmp_path, expr, needle):
     res = run("expand", f, "--order", 3, "--csv", out)
     assert res.exit_code == 2 and needle in res.stderr and "i.toml" in res.stderr
     assert not out.exists()
+
+
+def test_demo_runs_and_its_check_passes():
+    res = run("demo")
+    assert res.exit_code == 0, res.stdout + res.stderr
+    assert "zeta(2,1)                    = zeta(3)" in res.stdout
+    assert "3 passed, 0 failed" in res.stdout
