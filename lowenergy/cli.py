@@ -101,6 +101,7 @@ def tables_build(
     method: str = typer.Option(
         "auto", "--method", help="auto (double shuffle to 12, coaction above) | double-shuffle | motivic"
     ),
+    rows: bool = typer.Option(True, "--rows/--no-rows", help="also cache the word values the expansion engine uses"),
 ) -> None:
     """Build the MZV reduction tables (cached in the user's cache directory)."""
     from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
@@ -128,6 +129,12 @@ def tables_build(
                 bar.update(task, description=message)
 
         build_tables(weight, store, rebuild=rebuild, progress=progress, method=method)
+        if rows:
+            from .expansion.values import EXACT_MAX_WEIGHT, prepare_rows
+
+            if weight > EXACT_MAX_WEIGHT:
+                bar.update(task, completed=EXACT_MAX_WEIGHT, description="word values for the engine")
+                prepare_rows(weight, store, progress=lambda w: bar.update(task, completed=w))
     typer.echo(f"tables up to weight {weight} in {store.directory}")
 
 

@@ -23,7 +23,7 @@ from ..zeta.element import MZV
 from ..zeta.reduction import Monomial, monomials_of_weight
 from ..zeta.table import TableStore, default_store
 
-__all__ = ["WordValues", "word_values", "word_index"]
+__all__ = ["WordValues", "ModularWordValues", "word_values", "word_index", "prepare_rows"]
 
 
 def word_index(word: Tuple[int, ...]) -> int:
@@ -260,3 +260,20 @@ class ModularWordValues:
         raise LowEnergyError(
             f"exact reconstruction of a weight-{self.weight} coefficient failed with {len(SMALL_PRIMES)} primes"
         )
+
+
+def prepare_rows(max_weight: int, store: TableStore | None = None, progress=None) -> None:
+    """Build the disk cache of modular word rows for weights above the exact ones.
+
+    Optional: rows are built on first use anyway; doing it once after
+    ``tables build`` makes the first expansion of high order fast.
+    """
+    from ..zeta.motivic import SMALL_PRIMES
+
+    store = store or default_store()
+    for w in range(EXACT_MAX_WEIGHT + 1, max_weight + 1):
+        table = word_values(w, store, exact=False)
+        for p in SMALL_PRIMES:
+            table._rows(p)
+        if progress:
+            progress(w)
