@@ -171,6 +171,11 @@ def _parse_point(text: str) -> dict:
         if "=" not in part:
             raise InputError(f"expected name=value in --at, got {part.strip()!r}", hint="write --at s=-0.1,t=-0.05")
         name, value = (x.strip() for x in part.split("=", 1))
+        import re
+
+        if len(value) > 60 or not re.fullmatch(r"[+-]?\d+(\.\d+)?(/\d+)?", value):
+            raise InputError(f"not a rational or decimal number: {value!r}", term=part.strip(),
+                             hint="write e.g. s=-0.1 or t=-1/20")
         try:
             point[name] = Fraction(value)
         except (ValueError, ZeroDivisionError):

@@ -140,3 +140,21 @@ def test_demo_runs_and_its_check_passes():
     assert res.exit_code == 0, res.stdout + res.stderr
     assert "zeta(2,1)                    = zeta(3)" in res.stdout
     assert "3 passed, 0 failed" in res.stdout
+
+
+def test_expand_in_sigma_and_user_bases(tmp_path):
+    # σ-basis: the open-superstring factor is not fully crossing symmetric, so a
+    # remainder is reported; a user basis spanning order 2 decomposes it exactly.
+    f = tmp_path / "v.toml"
+    f.write_text('integrand = "x^(-s-1)*(1-x)^(-t-1)"\n')
+    res = run("expand", f, "--order", 2, "--basis", "symmetric", "--json")
+    assert res.exit_code == 0 and json.loads(res.stdout)["in_basis"] is True
+    res = run("expand", f, "--order", 2, "--user-basis", "A=s+t", "--user-basis", "B=s^2+t^2", "--user-basis", "C=s*t", "--json")
+    assert res.exit_code == 0, res.stderr
+    out = json.loads(res.stdout)
+    assert out["in_basis"] is True
+    exact = {t["name"]: t["exact"] for t in out["terms"]}
+    # B(-s,-t) = -1/s - 1/t + ζ(2)(s+t) + ζ(3)(s^2+t^2) + 2ζ(3) st + ...  (A&S 6.1.33)
+    assert exact["A"] == "zeta(2)" and exact["B"] == "zeta(3)" and exact["C"] == "2*zeta(3)"
+    assert run("expand", f, "--order", 2, "--user-basis", "A=s+").exit_code == 2
+    assert run("verify", f, "--at", "s=1e999999999,t=0").exit_code == 2
