@@ -1,4 +1,4 @@
-"""Shared fixtures.
+"""Shared fixtures (at the repository root so that the doctests in lowenergy/ get them too).
 
 The MZV tables are built once per test session into a temporary cache
 directory (weights <= 12 by double shuffle, 13-14 by the coaction route; about
