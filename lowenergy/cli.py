@@ -386,6 +386,9 @@ def residues(
     csv: Optional[str] = typer.Option(None, "--csv", help="write the residue (or wave) table as CSV"),
     as_json: bool = typer.Option(False, "--json", help="print the rows as JSON"),
     plot: Optional[str] = typer.Option(None, "--plot", help="with --waves: spectrum plot (PNG)"),
+    divide_by: Optional[str] = typer.Option(
+        None, "--divide-by", help="poles in s of I/f(t) for a polynomial f in t, e.g. '-t'"
+    ),
     digits: int = typer.Option(15, "--digits", help="digits of the numeric column"),
 ) -> None:
     """Exact pole coefficients at the massive levels (and partial waves)."""
@@ -408,6 +411,18 @@ def residues(
         raise InputError("--plot needs --waves")
     integrand = read_integrand(file)
     table = find_residues(integrand, levels)
+    if divide_by:
+        from .tables.bases import parse_polynomial
+
+        poly = parse_polynomial(divide_by, integrand.variables, source="--divide-by")
+        if any(i != 0 for (i, _j) in poly):
+            raise InputError(
+                f"--divide-by needs a polynomial in {integrand.variables[1]} only", term=divide_by
+            )
+        table = table.divided({j: c for (_i, j), c in poly.items()}, strict=False)
+        skipped = table.meta.get("not_divisible", [])
+        if skipped:
+            typer.echo(f"not divisible (left out): s = {', '.join(str(x) for x in skipped)}", err=True)
     result = partial_waves(table, dimension, sign=sign) if waves else table
     rows = result.to_rows(digits=digits) if hasattr(result, "to_rows") else result.to_dataframe(digits).to_dict("records")
     if plot:

@@ -158,3 +158,17 @@ def test_expand_in_sigma_and_user_bases(tmp_path):
     assert exact["A"] == "zeta(2)" and exact["B"] == "zeta(3)" and exact["C"] == "2*zeta(3)"
     assert run("expand", f, "--order", 2, "--user-basis", "A=s+").exit_code == 2
     assert run("verify", f, "--at", "s=1e999999999,t=0").exit_code == 2
+
+
+def test_residues_divide_by_gives_the_superstring_partial_waves(tmp_path):
+    # x^(-s-1)(1-x)^(-t) = -t Γ(-s)Γ(-t)/Γ(1-s-t) (A&S 6.1.15); dividing by -t gives the
+    # superstring residues (t+1)...(t+n-1)/(n-1)!.  In D = 11 the level-3 scalar
+    # coefficient is (10-D)/(24(D-1)) = -1/240 < 0, the only negative one up to level 4
+    # (exact value from the Gegenbauer decomposition, A&S 22.3.4).
+    f = tmp_path / "v.toml"
+    f.write_text('integrand = "x^(-s-1)*(1-x)^(-t)"\n')
+    res = run("residues", f, "--levels", 4, "--divide-by", "-t", "--waves", "--dim", "11", "--json")
+    assert res.exit_code == 0, res.stderr
+    neg = [r for r in json.loads(res.stdout) if r["negative"] == "yes"]
+    assert [(r["level"], r["spin"], r["exact"]) for r in neg] == [("3", 0, "-1/240")]
+    assert run("residues", f, "--levels", 4, "--divide-by", "s*t").exit_code == 2
