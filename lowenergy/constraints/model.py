@@ -121,7 +121,6 @@ lowenergy.errors.ParseError: y.toml, line 4, column 13: unknown coefficient fami
 
 from __future__ import annotations
 
-import bisect
 import difflib
 import math
 import os
@@ -134,6 +133,7 @@ from typing import Dict, Iterator, List, Optional, Sequence, Tuple
 
 from ..errors import InputError, LowEnergyError, ParseError
 from ..parse import Call, Div, Node, Num, Pow, Sym, parse_expression, to_text
+from .. import tomlpos
 
 if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
     import tomllib
@@ -178,6 +178,7 @@ MAX_NAME_LENGTH = 100
 
 _FAMILY_HINT = "coefficients are written c[i,j], sym[i,j] (i >= j >= 0) or sigma[a,b]"
 _CONSTANT_HINT = "numbers here are rationals, zeta(...), G(...; 1) and pi"
+_TOML_HINT = 'a constraint file is TOML: source = "...", then [[constraint]] tables'
 
 
 def _short(text: str, limit: int = 60) -> str:
@@ -388,69 +389,17 @@ def read_constraints(path) -> ConstraintSet:
 
 def constraints_from_text(text, source: str = "<constraints>") -> ConstraintSet:
     """Read a constraint set from TOML text (``str`` or UTF-8 ``bytes``)."""
-    text = _decode(text, source)
+    text = tomlpos.decode_toml_text(
+        text, source, what="constraint", max_size=MAX_FILE_SIZE, size_hint="split the constraint set"
+    )
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise _toml_error(exc, text, source) from None
+        raise tomlpos.toml_error(exc, text, source, _TOML_HINT) from None
     except RecursionError:
         raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None
     layout = _Layout(text)
     return _Reader(data, layout, source).read()
-
-
-def _decode(text, source: str) -> str:
-    if isinstance(text, (bytes, bytearray)):
-        data = bytes(text)
-        if len(data) > MAX_FILE_SIZE:
-            raise InputError(f"file larger than {MAX_FILE_SIZE} bytes", source=source, hint="split the constraint set")
-        try:
-            return data.decode("utf-8-sig")
-        except UnicodeDecodeError as exc:
-            line = data[: exc.start].count(b"\n") + 1
-            raise ParseError("the file is not valid UTF-8", source=source, line=line, hint="save the file as UTF-8") from None
-    if not isinstance(text, str):
-        raise InputError(f"constraint text must be a string, not {type(text).__name__}", source=source)
-    if len(text) > MAX_FILE_SIZE:
-        raise InputError(f"text longer than {MAX_FILE_SIZE} characters", source=source, hint="split the constraint set")
-    return text[1:] if text.startswith("\ufeff") else text
-
-
-def _toml_error(exc: Exception, text: str, source: str) -> ParseError:
-    message = getattr(exc, "msg", None) or str(exc)
-    line = getattr(exc, "lineno", None)
-    column = getattr(exc, "colno", None)
-    match = re.search(r"\s*\(at line (\d+), column (\d+)\)\s*$", message)
-    if match:
-        line = line or int(match.group(1))
-        column = column or int(match.group(2))
-        message = message[: match.start()]
-    elif re.search(r"\(at end of document\)\s*$", message):
-        message = re.sub(r"\s*\(at end of document\)\s*$", " at the end of the document", message)
-        line = line or max(1, text.count("\n") + (0 if text.endswith("\n") else 1))
-    return ParseError(
-        f"malformed TOML: {message}",
-        source=source,
-        line=line,
-        column=column,
-        hint='a constraint file is TOML: source = "...", then [[constraint]] tables',
-    )
-
-
-def _toml_type(value) -> str:
-    if isinstance(value, bool):
-        return "a boolean"
-    if isinstance(value, int):
-        return "an integer"
-    if isinstance(value, float):
-        return "a number"
-    if isinstance(value, str):
-        return "a string"
-    if isinstance(value, list):
-        return "a list"
-    if isinstance(value, dict):
-        return "a table"
-    return "a date or time"
 
 
 # --------------------------------------------------------------------------
@@ -458,18 +407,8 @@ def _toml_type(value) -> str:
 # --------------------------------------------------------------------------
 
 
-_BARE_KEY = r"[A-Za-z0-9_-]+"
-_QUOTED_KEY = r'"(?:[^"\\\n]|\\.)*"|' + r"'[^'\n]*'"
-_KEY_PART = f"(?:{_BARE_KEY}|{_QUOTED_KEY})"
-_KEY_LINE = re.compile(rf"[ \t]*({_KEY_PART})(?:[ \t]*\.[ \t]*{_KEY_PART})*[ \t]*=[ \t]*")
-_ARRAY_HEADER = re.compile(rf"[ \t]*\[\[[ \t]*({_KEY_PART})[ \t]*\]\]")
-_TABLE_HEADER = re.compile(rf"[ \t]*\[[ \t]*({_KEY_PART})")
-
-
-def _key_name(part: str) -> str:
-    if part[:1] in ("'", '"'):
-        return part[1:-1]
-    return part
+_ARRAY_HEADER = re.compile(rf"[ \t]*\[\[[ \t]*({tomlpos.KEY_PART})[ \t]*\]\]")
+_TABLE_HEADER = re.compile(rf"[ \t]*\[[ \t]*({tomlpos.KEY_PART})")
 
 
 class _Layout:
@@ -487,90 +426,41 @@ class _Layout:
         self.tables: List[Dict[str, Tuple[int, int]]] = []
         self.headers: List[int] = []
         self.other_headers: Dict[str, int] = {}
-        self._starts = [0] + [k + 1 for k, ch in enumerate(text) if ch == "\n"]
+        self._lines = tomlpos.LineIndex(text)
         self._scan()
-
-    def spot(self, offset: int) -> Tuple[int, int]:
-        row = bisect.bisect_right(self._starts, offset) - 1
-        return row + 1, offset - self._starts[row] + 1
 
     def _scan(self) -> None:
         text = self.text
-        n = len(text)
-        i = 0
-        line = 1
-        depth = 0
         context: Optional[Dict[str, Tuple[int, int]]] = self.top
-        line_start = True
-        while i < n:
-            if line_start and depth == 0:
-                line_start = False
-                header = _ARRAY_HEADER.match(text, i)
-                if header:
-                    name = _key_name(header.group(1))
-                    if name == "constraint":
-                        self.headers.append(line)
-                        context = {}
-                        self.tables.append(context)
-                    else:
-                        self.other_headers.setdefault(name, line)
-                        context = None
-                    i = header.end()
-                    continue
-                header = _TABLE_HEADER.match(text, i)
-                if header:
-                    self.other_headers.setdefault(_key_name(header.group(1)), line)
+
+        def visit(offset: int, line: int) -> Optional[int]:
+            nonlocal context
+            header = _ARRAY_HEADER.match(text, offset)
+            if header:
+                name = tomlpos.key_name(header.group(1))
+                if name == "constraint":
+                    self.headers.append(line)
+                    context = {}
+                    self.tables.append(context)
+                else:
+                    self.other_headers.setdefault(name, line)
                     context = None
-                    i = header.end()
-                    depth = 0
-                    # skip the rest of the header line
-                    while i < n and text[i] != "\n":
-                        i += 1
-                    continue
-                key = _KEY_LINE.match(text, i)
-                if key:
-                    if context is not None:
-                        context.setdefault(_key_name(key.group(1)), (line, key.end()))
-                    i = key.end()
-                    continue
-            ch = text[i]
-            if ch == "\n":
-                line += 1
-                line_start = True
-                i += 1
-            elif ch == "#":
-                while i < n and text[i] != "\n":
-                    i += 1
-            elif text.startswith('"""', i) or text.startswith("'''", i):
-                quote = text[i]
-                i += 3
-                while i < n and not text.startswith(quote * 3, i):
-                    if text[i] == "\\" and quote == '"':
-                        i += 1
-                        if i < n and text[i] == "\n":
-                            line += 1
-                    elif text[i] == "\n":
-                        line += 1
-                    i += 1
-                i += 3
-                while i < n and text[i] == quote:
-                    i += 1
-            elif ch in "\"'":
-                i += 1
-                while i < n and text[i] != ch and text[i] != "\n":
-                    if text[i] == "\\" and ch == '"' and i + 1 < n and text[i + 1] != "\n":
-                        i += 1
-                    i += 1
-                if i < n and text[i] == ch:
-                    i += 1
-            elif ch in "[{":
-                depth += 1
-                i += 1
-            elif ch in "]}":
-                depth = max(0, depth - 1)
-                i += 1
-            else:
-                i += 1
+                return header.end()
+            header = _TABLE_HEADER.match(text, offset)
+            if header:
+                self.other_headers.setdefault(tomlpos.key_name(header.group(1)), line)
+                context = None
+                # skip the rest of the header line
+                end = text.find("\n", header.end())
+                return len(text) if end < 0 else end
+            key = tomlpos.KEY_LINE.match(text, offset)
+            if key:
+                if context is not None:
+                    context.setdefault(tomlpos.key_name(key.group(1)), (line, key.end()))
+                return key.end()
+            return None
+
+        tomlpos.scan_lines(text, visit)
 
     def string_positions(self, offset: Optional[int], value: str) -> Tuple[Position, ...]:
         """``(line, column)`` of every character of the string value at ``offset``.
@@ -578,98 +468,8 @@ class _Layout:
         Empty when the value cannot be located exactly.  One extra entry at
         the end stands for the closing quote.
         """
-        if offset is None:
-            return ()
-        decoded = _decode_string_at(self.text, offset)
-        if decoded is None or decoded[0] != value:
-            return ()
-        chars, offsets, end = decoded
-        return tuple(self.spot(o) for o in offsets) + (self.spot(end),)
-
-
-_ESCAPES = {"b": "\b", "t": "\t", "n": "\n", "f": "\f", "r": "\r", '"': '"', "\\": "\\"}
-
-
-def _escape(text: str, i: int) -> Optional[Tuple[str, int]]:
-    letter = text[i + 1 : i + 2]
-    if letter in _ESCAPES:
-        return _ESCAPES[letter], i + 2
-    if letter in ("u", "U"):
-        size = 4 if letter == "u" else 8
-        digits = text[i + 2 : i + 2 + size]
-        if len(digits) == size and all(c in "0123456789abcdefABCDEF" for c in digits):
-            code = int(digits, 16)
-            if code <= 0x10FFFF:
-                return chr(code), i + 2 + size
-    return None
-
-
-def _decode_string_at(text: str, start: int) -> Optional[Tuple[str, List[int], int]]:
-    """Decode the TOML string at ``start``: ``(value, source offset per char, offset of the closing quote)``."""
-    n = len(text)
-    out: List[str] = []
-    where: List[int] = []
-    if text.startswith('"""', start) or text.startswith("'''", start):
-        quote = text[start]
-        i = start + 3
-        if text.startswith("\r\n", i):
-            i += 2
-        elif text.startswith("\n", i):
-            i += 1
-        while i < n:
-            if text.startswith(quote * 3, i):
-                extra = 0
-                while extra < 2 and text.startswith(quote * 3, i + 1):
-                    out.append(quote)
-                    where.append(i)
-                    i += 1
-                    extra += 1
-                return "".join(out), where, i
-            ch = text[i]
-            if ch == "\\" and quote == '"':
-                j = i + 1
-                while j < n and text[j] in " \t":
-                    j += 1
-                if j < n and text[j] in "\r\n":
-                    while j < n and text[j] in " \t\r\n":
-                        j += 1
-                    i = j
-                    continue
-                decoded = _escape(text, i)
-                if decoded is None:
-                    return None
-                out.append(decoded[0])
-                where.append(i)
-                i = decoded[1]
-                continue
-            if ch == "\r" and text.startswith("\r\n", i):
-                out.append("\n")
-                where.append(i)
-                i += 2
-                continue
-            out.append(ch)
-            where.append(i)
-            i += 1
-        return None
-    if start < n and text[start] in "\"'":
-        quote = text[start]
-        i = start + 1
-        while i < n and text[i] != "\n":
-            ch = text[i]
-            if ch == quote:
-                return "".join(out), where, i
-            if ch == "\\" and quote == '"':
-                decoded = _escape(text, i)
-                if decoded is None:
-                    return None
-                out.append(decoded[0])
-                where.append(i)
-                i = decoded[1]
-                continue
-            out.append(ch)
-            where.append(i)
-            i += 1
-    return None
+        positions = tomlpos.string_positions(self.text, offset, value, self._lines)
+        return tuple(positions) if positions is not None else ()
 
 
 # --------------------------------------------------------------------------
@@ -990,7 +790,7 @@ class _Reader:
         notes = self.string_top("notes") if "notes" in data else ""
         template = data.get("template", False)
         if not isinstance(template, bool):
-            raise self.error(InputError, f"'template' must be true or false, not {_toml_type(template)}",
+            raise self.error(InputError, f"'template' must be true or false, not {tomlpos.toml_type(template)}",
                              self.top_line("template"), "template", hint="write template = true")
         if "constraint" not in data:
             raise self.error(InputError, "no constraints: missing [[constraint]] tables", None,
@@ -1009,7 +809,7 @@ class _Reader:
         seen: Dict[str, Optional[int]] = {}
         for index, table in enumerate(tables):
             if not isinstance(table, dict):
-                raise self.error(InputError, f"constraint {index + 1} is {_toml_type(table)}, not a table",
+                raise self.error(InputError, f"constraint {index + 1} is {tomlpos.toml_type(table)}, not a table",
                                  self.top_line("constraint"), "constraint", hint="write each constraint under [[constraint]]")
             c = self.constraint(index, table)
             if c.name in seen:
@@ -1023,7 +823,7 @@ class _Reader:
     def string_top(self, key: str) -> str:
         value = self.data[key]
         if not isinstance(value, str):
-            raise self.error(InputError, f"'{key}' must be a string, not {_toml_type(value)}", self.top_line(key), key,
+            raise self.error(InputError, f"'{key}' must be a string, not {tomlpos.toml_type(value)}", self.top_line(key), key,
                              hint=f'write {key} = "..."')
         return value
 
@@ -1044,7 +844,7 @@ class _Reader:
                 return None
             value = table[key]
             if not isinstance(value, str):
-                raise self.error(InputError, f"'{key}' must be a string, not {_toml_type(value)}{label}",
+                raise self.error(InputError, f"'{key}' must be a string, not {tomlpos.toml_type(value)}{label}",
                                  self.table_line(index, key), key, hint=f'write {key} = "..."')
             return value
 
@@ -1117,7 +917,7 @@ class _Reader:
                 hint = 'write the exact value as a string, e.g. rhs = "zeta(3)"'
                 if isinstance(value, float):
                     hint = "a decimal number is not exact: use rhs_value with abs_tol/rel_tol, or an exact string such as \"1/4\""
-                raise self.error(InputError, f"'rhs' must be a string or an integer, not {_toml_type(value)}{label}",
+                raise self.error(InputError, f"'rhs' must be a string or an integer, not {tomlpos.toml_type(value)}{label}",
                                  rhs_line, "rhs", hint=hint)
             if isinstance(value, int):
                 rhs_text = str(value)
@@ -1173,8 +973,7 @@ class _Reader:
     def place(self, err: LowEnergyError, positions, line, label: str, what: str = "relation") -> LowEnergyError:
         column = err.column
         if positions:
-            index = min(max(column or 1, 1), len(positions)) - 1
-            err.line, err.column = positions[index]
+            err.line, err.column = tomlpos.position_at(positions, column)
         else:
             err.line, err.column = line, None
         err.source = self.source
@@ -1211,7 +1010,7 @@ class _Reader:
         if q is None:
             raise self.error(
                 InputError,
-                f"'{key}' must be a number, not {_toml_type(value) if not isinstance(value, str) else repr(_short(value, 30))}{label}",
+                f"'{key}' must be a number, not {tomlpos.toml_type(value) if not isinstance(value, str) else repr(_short(value, 30))}{label}",
                 line,
                 key,
                 hint=f"write {key} = 1.5e-8 or a decimal string such as \"1.6449340668482264365\"",

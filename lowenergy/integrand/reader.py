@@ -84,7 +84,6 @@ Examples
 
 from __future__ import annotations
 
-import bisect
 import difflib
 import os
 import re
@@ -96,6 +95,7 @@ from typing import Dict, List, Optional, Sequence, Tuple
 from ..errors import InputError, LowEnergyError, ParseError, RegularizationError
 from ..words import shuffle
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
+from .. import tomlpos
 from ..zeta.element import MZV, g_value, zeta
 from ..zeta.table import TableStore, default_store
 from .model import Integrand, LinearExponent, Term
@@ -193,11 +193,13 @@ def integrand_from_text(
     toml_text, source: str = "<string>", *, store: TableStore | None = None
 ) -> Integrand:
     """Read an integrand from TOML text (``str``, or UTF-8 ``bytes``)."""
-    text = _decode(toml_text, source)
+    text = tomlpos.decode_toml_text(
+        toml_text, source, what="integrand", max_size=MAX_FILE_SIZE, size_hint="integrand files are small"
+    )
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise _toml_error(exc, text, source) from None
+        raise tomlpos.toml_error(exc, text, source, f"an integrand file is TOML, e.g. {_HINT_EXAMPLE}") from None
     except RecursionError:
         raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None
     layout = _scan_toml(text)
@@ -222,7 +224,7 @@ def integrand_from_text(
         value = data.get(key, default)
         if not isinstance(value, str):
             raise InputError(
-                f"'{key}' must be a string, not {_toml_type(value)}",
+                f"'{key}' must be a string, not {tomlpos.toml_type(value)}",
                 source=source,
                 line=where(key),
                 term=key,
@@ -240,7 +242,7 @@ def integrand_from_text(
     variables = data.get("variables", ["s", "t"])
     if not isinstance(variables, list):
         raise InputError(
-            f"'variables' must be a list of two names, not {_toml_type(variables)}",
+            f"'variables' must be a list of two names, not {tomlpos.toml_type(variables)}",
             source=source,
             line=where("variables"),
             term="variables",
@@ -260,7 +262,7 @@ def integrand_from_text(
     parameters = data.get("parameters", [])
     if not isinstance(parameters, list):
         raise InputError(
-            f"'parameters' must be a list of names, not {_toml_type(parameters)}",
+            f"'parameters' must be a list of names, not {tomlpos.toml_type(parameters)}",
             source=source,
             line=where("parameters"),
             term="parameters",
@@ -285,7 +287,7 @@ def integrand_from_text(
             seen[name] = key
 
     key_line = where("integrand")
-    positions = _string_positions(text, layout.values.get("integrand"), integrand_text)
+    positions = tomlpos.string_positions(text, layout.values.get("integrand"), integrand_text)
     terms = terms_from_expression(
         integrand_text,
         variables=tuple(variables),
@@ -428,69 +430,10 @@ def terms_from_expression(
 # ==========================================================================
 
 
-def _decode(toml_text, source: str) -> str:
-    if isinstance(toml_text, (bytes, bytearray)):
-        data = bytes(toml_text)
-        if len(data) > MAX_FILE_SIZE:
-            raise InputError(f"file larger than {MAX_FILE_SIZE} bytes", source=source, hint="integrand files are small")
-        try:
-            return data.decode("utf-8-sig")
-        except UnicodeDecodeError as exc:
-            line = data[: exc.start].count(b"\n") + 1
-            raise ParseError(
-                "the file is not valid UTF-8", source=source, line=line, hint="save the file as UTF-8"
-            ) from None
-    if not isinstance(toml_text, str):
-        raise InputError(f"integrand text must be a string, not {type(toml_text).__name__}", source=source)
-    if len(toml_text) > MAX_FILE_SIZE:
-        raise InputError(f"text longer than {MAX_FILE_SIZE} characters", source=source, hint="integrand files are small")
-    return toml_text[1:] if toml_text.startswith("\ufeff") else toml_text
-
-
-def _toml_error(exc: Exception, text: str, source: str) -> ParseError:
-    message = str(exc)
-    line = getattr(exc, "lineno", None)
-    column = getattr(exc, "colno", None)
-    match = re.search(r"\s*\(at line (\d+), column (\d+)\)\s*$", message)
-    if match:
-        line = line or int(match.group(1))
-        column = column or int(match.group(2))
-        message = message[: match.start()]
-    else:
-        match = re.search(r"\s*\(at end of document\)\s*$", message)
-        if match:
-            message = message[: match.start()] + " at the end of the document"
-            line = line or (text.count("\n") + (0 if text.endswith("\n") else 1) or 1)
-    message = getattr(exc, "msg", None) or message
-    return ParseError(
-        f"malformed TOML: {message}",
-        source=source,
-        line=line,
-        column=column,
-        hint=f"an integrand file is TOML, e.g. {_HINT_EXAMPLE}",
-    )
-
-
-def _toml_type(value) -> str:
-    if isinstance(value, bool):
-        return "a boolean"
-    if isinstance(value, int):
-        return "an integer"
-    if isinstance(value, float):
-        return "a number"
-    if isinstance(value, str):
-        return "a string"
-    if isinstance(value, list):
-        return "a list"
-    if isinstance(value, dict):
-        return "a table"
-    return "a date or time"
-
-
 def _check_name(name, key: str, source, line) -> None:
     if not isinstance(name, str):
         raise InputError(
-            f"'{key}' must contain names (strings), found {_toml_type(name)}",
+            f"'{key}' must contain names (strings), found {tomlpos.toml_type(name)}",
             source=source,
             line=line,
             term=key,
@@ -522,213 +465,37 @@ class _Layout:
         self.values: Dict[str, int] = {}
 
 
-_BARE_KEY = r"[A-Za-z0-9_-]+"
-_QUOTED_KEY = r'"(?:[^"\\\n]|\\.)*"|' + r"'[^'\n]*'"
-_KEY_PART = f"(?:{_BARE_KEY}|{_QUOTED_KEY})"
-_KEY_LINE = re.compile(rf"[ \t]*({_KEY_PART})(?:[ \t]*\.[ \t]*{_KEY_PART})*[ \t]*=[ \t]*")
-_HEADER = re.compile(rf"[ \t]*\[\[?[ \t]*({_KEY_PART})")
-
-
-def _key_name(part: str) -> str:
-    if part[:1] == "'":
-        return part[1:-1]
-    if part[:1] == '"':
-        inner = part[1:-1]
-        return inner if "\\" not in inner else inner  # escapes in keys: best effort
-    return part
+_HEADER = re.compile(rf"[ \t]*\[\[?[ \t]*({tomlpos.KEY_PART})")
 
 
 def _scan_toml(text: str) -> _Layout:
-    """Best-effort lexer that finds the lines of top-level keys and table headers.
+    """Find the lines of top-level keys and table headers, and the offsets
+    of the values of top-level keys (see :func:`lowenergy.tomlpos.scan_lines`).
 
-    It skips strings (all four kinds), comments and nested arrays/inline
-    tables so that ``key =`` inside a multi-line string is not mistaken for a
-    key.  Only used for messages; the document itself is read by tomllib.
+    Only used for messages; the document itself is read by tomllib.
     """
     layout = _Layout()
-    n = len(text)
-    i = 0
-    line = 1
-    depth = 0
     in_table = False
-    line_start = True
-    while i < n:
-        if line_start and depth == 0:
-            line_start = False
-            header = _HEADER.match(text, i)
-            if header:
-                in_table = True
-                layout.lines.setdefault(_key_name(header.group(1)), line)
-                i = header.end()
-                continue
-            key = _KEY_LINE.match(text, i)
-            if key:
-                if not in_table:
-                    name = _key_name(key.group(1))
-                    if name not in layout.lines:
-                        layout.lines[name] = line
-                        layout.values[name] = key.end()
-                i = key.end()
-                continue
-        ch = text[i]
-        if ch == "\n":
-            line += 1
-            line_start = True
-            i += 1
-        elif ch == "#":
-            while i < n and text[i] != "\n":
-                i += 1
-        elif text.startswith('"""', i) or text.startswith("'''", i):
-            quote = text[i]
-            close = quote * 3
-            i += 3
-            while i < n and not text.startswith(close, i):
-                if text[i] == "\\" and quote == '"':
-                    i += 1
-                    if i < n and text[i] == "\n":
-                        line += 1
-                elif text[i] == "\n":
-                    line += 1
-                i += 1
-            i += 3
-            extra = 0
-            while i < n and text[i] == quote and extra < 2:
-                i += 1
-                extra += 1
-        elif ch in "\"'":
-            i += 1
-            while i < n and text[i] != ch and text[i] != "\n":
-                if text[i] == "\\" and ch == '"' and i + 1 < n and text[i + 1] != "\n":
-                    i += 1
-                i += 1
-            if i < n and text[i] == ch:
-                i += 1
-        elif ch in "[{":
-            depth += 1
-            i += 1
-        elif ch in "]}":
-            depth = max(0, depth - 1)
-            i += 1
-        else:
-            i += 1
+
+    def visit(offset: int, line: int) -> Optional[int]:
+        nonlocal in_table
+        header = _HEADER.match(text, offset)
+        if header:
+            in_table = True
+            layout.lines.setdefault(tomlpos.key_name(header.group(1)), line)
+            return header.end()
+        key = tomlpos.KEY_LINE.match(text, offset)
+        if key:
+            if not in_table:
+                name = tomlpos.key_name(key.group(1))
+                if name not in layout.lines:
+                    layout.lines[name] = line
+                    layout.values[name] = key.end()
+            return key.end()
+        return None
+
+    tomlpos.scan_lines(text, visit)
     return layout
-
-
-_ESCAPES = {"b": "\b", "t": "\t", "n": "\n", "f": "\f", "r": "\r", '"': '"', "\\": "\\"}
-
-
-def _decode_string_at(text: str, start: int) -> Optional[Tuple[str, List[int], int]]:
-    """Decode the TOML string starting at ``start``.
-
-    Returns ``(value, offsets, end)`` with the offset in ``text`` of the
-    source of every character of the value and the offset just after the
-    closing quote, or None if ``start`` does not hold a string this
-    function understands.
-    """
-    n = len(text)
-    out: List[str] = []
-    where: List[int] = []
-    if text.startswith('"""', start) or text.startswith("'''", start):
-        quote = text[start]
-        i = start + 3
-        if text.startswith("\r\n", i):
-            i += 2
-        elif text.startswith("\n", i):
-            i += 1
-        while i < n:
-            if text.startswith(quote * 3, i):
-                extra = 0
-                while extra < 2 and text.startswith(quote * 3, i + 1):
-                    out.append(quote)
-                    where.append(i)
-                    i += 1
-                    extra += 1
-                return "".join(out), where, i + 3
-            ch = text[i]
-            if ch == "\\" and quote == '"':
-                j = i + 1
-                while j < n and text[j] in " \t":
-                    j += 1
-                if j < n and text[j] in "\r\n":
-                    while j < n and text[j] in " \t\r\n":
-                        j += 1
-                    i = j
-                    continue
-                decoded = _escape(text, i)
-                if decoded is None:
-                    return None
-                out.append(decoded[0])
-                where.append(i)
-                i = decoded[1]
-                continue
-            if ch == "\r" and text.startswith("\r\n", i):
-                out.append("\n")
-                where.append(i)
-                i += 2
-                continue
-            out.append(ch)
-            where.append(i)
-            i += 1
-        return None
-    if start < n and text[start] in "\"'":
-        quote = text[start]
-        i = start + 1
-        while i < n and text[i] != "\n":
-            ch = text[i]
-            if ch == quote:
-                return "".join(out), where, i + 1
-            if ch == "\\" and quote == '"':
-                decoded = _escape(text, i)
-                if decoded is None:
-                    return None
-                out.append(decoded[0])
-                where.append(i)
-                i = decoded[1]
-                continue
-            out.append(ch)
-            where.append(i)
-            i += 1
-    return None
-
-
-def _escape(text: str, i: int) -> Optional[Tuple[str, int]]:
-    letter = text[i + 1 : i + 2]
-    if letter in _ESCAPES:
-        return _ESCAPES[letter], i + 2
-    if letter in ("u", "U"):
-        size = 4 if letter == "u" else 8
-        digits = text[i + 2 : i + 2 + size]
-        if len(digits) == size and all(c in "0123456789abcdefABCDEF" for c in digits):
-            code = int(digits, 16)
-            if code <= 0x10FFFF:
-                return chr(code), i + 2 + size
-    return None
-
-
-def _string_positions(text: str, offset: Optional[int], value: str) -> Optional[List[Tuple[int, int]]]:
-    """``(line, column)`` in ``text`` of every character of the string value at ``offset``.
-
-    None when the value cannot be located exactly (then messages give the
-    line of the key only).  The list has one extra entry for the end of the
-    string (the closing quote).
-    """
-    if offset is None:
-        return None
-    decoded = _decode_string_at(text, offset)
-    if decoded is None or decoded[0] != value:
-        return None
-    starts = [0]
-    for k, ch in enumerate(text):
-        if ch == "\n":
-            starts.append(k + 1)
-
-    def spot(off: int) -> Tuple[int, int]:
-        row = bisect.bisect_right(starts, off) - 1
-        return row + 1, off - starts[row] + 1
-
-    quote_len = 3 if text.startswith(text[offset] * 3, offset) else 1
-    end = decoded[2] - quote_len
-    return [spot(off) for off in decoded[1]] + [spot(end)]
 
 
 def _join_lines(text: str, line: Optional[int], positions):
@@ -745,24 +512,19 @@ def _join_lines(text: str, line: Optional[int], positions):
             return joined, None
 
         def mapping(column: int) -> Tuple[Optional[int], Optional[int]]:
-            index = min(max(column, 1), len(pos)) - 1
-            return pos[index]
+            return tomlpos.position_at(pos, column)
 
         return joined, mapping
     if line is None:
         return joined, None
     # map columns of a multi-line text with first line ``line``
-    starts = [0]
-    for k, ch in enumerate(text):
-        if ch == "\n":
-            starts.append(k + 1)
+    lines = tomlpos.LineIndex(text)
 
     def mapping(column: int) -> Tuple[Optional[int], Optional[int]]:
-        off = max(column, 1) - 1
-        row = bisect.bisect_right(starts, off) - 1
-        if row == 0:
+        row, col = lines.spot(max(column, 1) - 1)
+        if row == 1:
             return line, column
-        return line + row, off - starts[row] + 1
+        return line + row - 1, col
 
     return joined, mapping
 
