@@ -255,8 +255,6 @@ def raw_series(
     max_m = order if vx is not None else 0
     for m in range(0, max_m + 1):
         max_n = (order - m) if vy is not None else 0
-        if vy is not None and vx is not None and vy == vx:
-            max_n = order - m
         for n in range(0, max_n + 1):
             e1 = mono(vx, m)
             e2 = mono(vy, n)
