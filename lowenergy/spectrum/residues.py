@@ -73,6 +73,7 @@ from ..errors import InputError
 from ..integrand.model import Integrand, Poly, Term
 from ..integrand.transform import g_of_one_minus_x
 from ..zeta.element import MZV
+from ..zeta.format import fraction_text
 from ..zeta.table import TableStore, default_store
 
 __all__ = [
@@ -428,7 +429,7 @@ class ResidueTable:
                         coef = rpoly[power][pkey]
                         rows.append({
                             "variable": self.variables[v],
-                            "location": _fraction_text(p),
+                            "location": fraction_text(p),
                             "order": m,
                             "power": power,
                             "param": _param_text(pkey, self.parameters),
@@ -450,10 +451,6 @@ class ResidueTable:
 
 
 _RESIDUE_COLUMNS = ["variable", "location", "order", "power", "param", "exact", "numeric"]
-
-
-def _fraction_text(q: Fraction) -> str:
-    return str(q.numerator) if q.denominator == 1 else f"{q.numerator}/{q.denominator}"
 
 
 def _param_text(pkey: Tuple[int, ...], names: Sequence[str]) -> str:

@@ -80,6 +80,7 @@ from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Un
 from ..errors import InputError
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
 from ..zeta.element import MZV
+from ..zeta.format import join_terms, term_text
 
 __all__ = [
     "Poly2",
@@ -270,53 +271,20 @@ def monomial_latex(i: int, j: int, variables: Sequence[str] = ("s", "t")) -> str
     return " ".join(parts) if parts else "1"
 
 
-def _fraction_text(q: Fraction) -> str:
-    return str(q.numerator) if q.denominator == 1 else f"{q.numerator}/{q.denominator}"
-
-
 def polynomial_text(p: Poly2, variables: Sequence[str] = ("s", "t")) -> str:
     """Canonical plain text of a rational polynomial (parseable again)."""
-    parts = []
-    for key in _sorted_monomials(p):
-        c = p[key]
-        mono = monomial_text(key[0], key[1], variables)
-        if key == (0, 0):
-            parts.append(_fraction_text(c))
-        elif c == 1:
-            parts.append(mono)
-        elif c == -1:
-            parts.append("-" + mono)
-        else:
-            parts.append(f"{_fraction_text(c)}*{mono}")
-    return _join_signed(parts)
-
-
-def _join_signed(parts: List[str]) -> str:
-    if not parts:
-        return "0"
-    text = parts[0]
-    for p in parts[1:]:
-        text += " - " + p[1:] if p.startswith("-") else " + " + p
-    return text
+    return join_terms(
+        [term_text(p[key], "" if key == (0, 0) else monomial_text(key[0], key[1], variables))
+         for key in _sorted_monomials(p)]
+    )
 
 
 def polynomial_latex(p: Poly2, variables: Sequence[str] = ("s", "t")) -> str:
     """Math-mode LaTeX of a rational polynomial."""
-    from ..zeta.format import fraction_latex
-
-    parts = []
-    for key in _sorted_monomials(p):
-        c = p[key]
-        mono = monomial_latex(key[0], key[1], variables)
-        if key == (0, 0):
-            parts.append(fraction_latex(c))
-        elif c == 1:
-            parts.append(mono)
-        elif c == -1:
-            parts.append("-" + mono)
-        else:
-            parts.append(f"{fraction_latex(c)}\\, {mono}")
-    return _join_signed(parts)
+    return join_terms(
+        [term_text(p[key], "" if key == (0, 0) else monomial_latex(key[0], key[1], variables), "latex")
+         for key in _sorted_monomials(p)]
+    )
 
 
 def sigma_label(a: int, b: int) -> str:
@@ -975,17 +943,7 @@ class UserBasis:
 
 
 def _combination_text(combination: Dict[str, Fraction]) -> str:
-    parts = []
-    for name, c in combination.items():
-        if not c:
-            continue
-        if c == 1:
-            parts.append(name)
-        elif c == -1:
-            parts.append("-" + name)
-        else:
-            parts.append(f"{_fraction_text(c)}*{name}")
-    return _join_signed(parts)
+    return join_terms([term_text(c, name) for name, c in combination.items() if c])
 
 
 def decompose_user(

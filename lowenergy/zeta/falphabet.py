@@ -32,6 +32,7 @@ from fractions import Fraction
 from typing import Dict, Mapping, Tuple
 
 from ..words import Indices, indices_to_word, regularize_word, shuffle, word_to_indices
+from .format import join_terms, term_text
 
 __all__ = [
     "FKey",
@@ -132,19 +133,10 @@ def f_to_text(f: Mapping[FKey, Fraction]) -> str:
     if not f:
         return "0"
     parts = []
-    for (p, letters), c in sorted(f.items(), key=lambda kv: (kv[0][0] + sum(kv[0][1]) * 0, len(kv[0][1]), kv[0])):
+    for (p, letters), c in sorted(f.items(), key=lambda kv: (kv[0][0], len(kv[0][1]), kv[0])):
         factors = []
         if p:
             factors.append("f2" if p == 1 else f"f2^{p}")
         factors.extend(f"f{a}" for a in letters)
-        body = "*".join(factors)
-        if not body:
-            parts.append(str(c))
-        elif c == 1:
-            parts.append(body)
-        elif c == -1:
-            parts.append("-" + body)
-        else:
-            parts.append(f"{c}*{body}")
-    text = " + ".join(parts)
-    return text.replace("+ -", "- ")
+        parts.append(term_text(Fraction(c), "*".join(factors)))
+    return join_terms(parts)

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-__all__ = ["element_to_text", "fraction_text", "fraction_latex"]
+__all__ = ["element_to_text", "fraction_text", "fraction_latex", "term_text", "join_terms"]
 
 
 def fraction_text(q: Fraction) -> str:
@@ -16,6 +16,32 @@ def fraction_latex(q: Fraction) -> str:
         return str(q.numerator)
     sign = "-" if q < 0 else ""
     return f"{sign}\\frac{{{abs(q.numerator)}}}{{{q.denominator}}}"
+
+
+def term_text(coef: Fraction, body: str, style: str = "plain") -> str:
+    """One signed term ``coef · body``; an empty body gives the number alone.
+
+    ``style="plain"`` writes ``3/2*body``, ``"latex"`` writes ``\\frac{3}{2}\\, body``;
+    coefficients ±1 are written as signs only.
+    """
+    number = fraction_latex if style == "latex" else fraction_text
+    if not body:
+        return number(coef)
+    if coef == 1:
+        return body
+    if coef == -1:
+        return "-" + body
+    return f"{number(coef)}\\, {body}" if style == "latex" else f"{number(coef)}*{body}"
+
+
+def join_terms(parts) -> str:
+    """Join signed terms with `` + `` / `` - `` (``"0"`` for none)."""
+    if not parts:
+        return "0"
+    text = parts[0]
+    for p in parts[1:]:
+        text += " - " + p[1:] if p.startswith("-") else " + " + p
+    return text
 
 
 def _factors(mono, style: str, pi: bool):
@@ -54,30 +80,6 @@ def element_to_text(x, style: str = "plain", pi: bool = False) -> str:
     parts = []
     for mono, c in x.terms():
         factors, scale = _factors(mono, style, pi)
-        c = c * scale
-        if style == "latex":
-            body = " ".join(factors)
-            if not body:
-                parts.append(fraction_latex(c))
-            elif c == 1:
-                parts.append(body)
-            elif c == -1:
-                parts.append("-" + body)
-            else:
-                parts.append(f"{fraction_latex(c)}\\, {body}")
-        else:
-            body = "*".join(factors)
-            if not body:
-                parts.append(fraction_text(c))
-            elif c == 1:
-                parts.append(body)
-            elif c == -1:
-                parts.append("-" + body)
-            else:
-                parts.append(f"{fraction_text(c)}*{body}")
-    if not parts:
-        return "0"
-    text = parts[0]
-    for p in parts[1:]:
-        text += " - " + p[1:] if p.startswith("-") else " + " + p
-    return text
+        body = " ".join(factors) if style == "latex" else "*".join(factors)
+        parts.append(term_text(c * scale, body, style))
+    return join_terms(parts)
