@@ -109,6 +109,7 @@ __all__ = [
     "Pow",
     "parse_expression",
     "walk",
+    "children",
     "to_text",
     "equal_ignoring_columns",
     "MAX_INPUT_LENGTH",
@@ -296,7 +297,12 @@ class Pow(Node):
         _check_node("Pow", "exponent", self.exponent)
 
 
-def _children(node: Node) -> Tuple[Node, ...]:
+def children(node: Node) -> Tuple[Node, ...]:
+    """The direct sub-nodes, left to right (a call's letters before its arguments).
+
+    >>> children(parse_expression("a - b^2"))
+    (Sym('a'), Pow(Sym('b'), Num(2)))
+    """
     if isinstance(node, _Binary):
         return (node.left, node.right)
     if isinstance(node, Pow):
@@ -320,7 +326,7 @@ def walk(node: Node) -> Iterator[Node]:
     while stack:
         current = stack.pop()
         yield current
-        stack.extend(reversed(_children(current)))
+        stack.extend(reversed(children(current)))
 
 
 def _equal(a: Node, b: Node) -> bool:
@@ -344,7 +350,7 @@ def _equal(a: Node, b: Node) -> bool:
                 return False
             if x.letters is not None and len(x.letters) != len(y.letters):
                 return False
-        stack.extend(zip(_children(x), _children(y)))
+        stack.extend(zip(children(x), children(y)))
     return True
 
 
@@ -372,7 +378,7 @@ def _hash(node: Node) -> int:
     stack: List[Tuple[Node, bool]] = [(node, False)]
     while stack:
         current, expanded = stack.pop()
-        kids = _children(current)
+        kids = children(current)
         if expanded:
             count = len(kids)
             child_hashes = tuple(results[len(results) - count:]) if count else ()
@@ -493,7 +499,7 @@ def _repr_parts(node: Node) -> list:
         parts.append(")")
         return parts
     return [f"{name}("] + [
-        piece for i, kid in enumerate(_children(node)) for piece in ([", ", kid] if i else [kid])
+        piece for i, kid in enumerate(children(node)) for piece in ([", ", kid] if i else [kid])
     ] + [")"]
 
 

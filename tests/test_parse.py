@@ -29,7 +29,7 @@ from lowenergy.parse import (
     to_text,
     walk,
 )
-from lowenergy.parse import _children  # internal, only to measure tree depth
+from lowenergy.parse import children  # to measure tree depth
 
 # short constructors for the expected trees
 N = Num
@@ -485,7 +485,7 @@ def _tree_depth(node):
     while stack:
         current, level = stack.pop()
         deepest = max(deepest, level)
-        stack.extend((kid, level + 1) for kid in _children(current))
+        stack.extend((kid, level + 1) for kid in children(current))
     return deepest
 
 

@@ -72,7 +72,7 @@ import mpmath
 
 from ..errors import InputError, LowEnergyError, NumericError, TableError
 from ..expansion.result import Expansion
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym
+from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, children
 from ..words import regularize_word, word_to_indices
 from ..zeta.element import MZV, g_value, zeta
 from ..zeta.numeric import zeta_numeric
@@ -415,12 +415,7 @@ def _evaluate(
                 raise _fail(node, f"unknown function '{node.name}'")
             push(node, {} if ring.is_zero(y) else {(zero, 0): y})
             continue
-        if isinstance(node, Neg):
-            kids: Tuple[Node, ...] = (node.operand,)
-        elif isinstance(node, Pow):
-            kids = (node.base, node.exponent)
-        else:
-            kids = (node.left, node.right)  # type: ignore[attr-defined]
+        kids = children(node)
         if not ready:
             stack.append((node, True))
             for kid in kids:

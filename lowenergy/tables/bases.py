@@ -78,7 +78,7 @@ from fractions import Fraction
 from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Union
 
 from ..errors import InputError
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
+from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, children, parse_expression, to_text
 from ..zeta.element import MZV
 from ..zeta.format import join_terms, term_text
 
@@ -364,18 +364,13 @@ def parse_polynomial(
                 "basis polynomials have rational coefficients; MZVs belong to the coefficients",
             )
         else:
-            if isinstance(node, Neg):
-                children: Tuple[Node, ...] = (node.operand,)
-            elif isinstance(node, Pow):
-                children = (node.base, node.exponent)
-            else:
-                children = (node.left, node.right)  # type: ignore[attr-defined]
+            kids = children(node)
             if not ready:
                 stack.append((node, True))
-                for c in children:
+                for c in kids:
                     stack.append((c, False))
                 continue
-            vals = [values[id(c)].pop() for c in children]
+            vals = [values[id(c)].pop() for c in kids]
             if isinstance(node, Neg):
                 res = {k: -v for k, v in vals[0].items()}
             elif isinstance(node, Add):

@@ -22,7 +22,7 @@ from fractions import Fraction
 from typing import Dict
 
 from ..errors import InputError, LowEnergyError, RegularizationError
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression
+from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, children, parse_expression
 from .element import MZV, g_value, zeta
 from .table import TableStore
 
@@ -171,15 +171,13 @@ def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStor
             else:
                 raise _fail(node, f"unknown function {node.name!r}", "known here: zeta(...), G(...; 1)")
             continue
-        children = (node.operand,) if isinstance(node, Neg) else (
-            (node.base, node.exponent) if isinstance(node, Pow) else (node.left, node.right)
-        )
+        kids = children(node)
         if not ready:
             stack.append((node, True))
-            for c in children:
+            for c in kids:
                 stack.append((c, False))
             continue
-        vals = [values[id(c)].pop() for c in children]
+        vals = [values[id(c)].pop() for c in kids]
         if isinstance(node, Neg):
             res = {p: -x for p, x in vals[0].items()}
         elif isinstance(node, Add):
