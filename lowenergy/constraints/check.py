@@ -72,6 +72,7 @@ import mpmath
 
 from ..errors import InputError, LowEnergyError, NumericError, TableError
 from ..expansion.result import Expansion
+from ..integrand.model import poly_add, poly_scale
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, children
 from ..words import regularize_word, word_to_indices
 from ..zeta.element import MZV, g_value, zeta
@@ -154,7 +155,7 @@ class CoefficientValues:
                     f"the candidate is not symmetric under s <-> t at c[{a},{b}], c[{b},{a}]; "
                     f"{ref.name} is the coefficient of its symmetric part"
                 )
-            return _pp_scale(_pp_add(x, y), Fraction(1, 2))
+            return poly_scale(poly_add(x, y), Fraction(1, 2))
         # sigma: project the degree-d contact terms on sigma2^a sigma3^b
         from ..tables.bases import decompose_sigma
 
@@ -174,21 +175,6 @@ class CoefficientValues:
                 f"{ref.name} is the coefficient of their symmetrized part"
             )
         return dict(dec.coefficients.get(ref.name, {}))  # type: ignore[attr-defined]
-
-
-def _pp_add(a: ParamPoly, b: ParamPoly, factor: Fraction | int = 1) -> ParamPoly:
-    out = dict(a)
-    for k, v in b.items():
-        y = out.get(k, MZV()) + v * factor
-        if y:
-            out[k] = y
-        else:
-            out.pop(k, None)
-    return out
-
-
-def _pp_scale(a: ParamPoly, q: Fraction) -> ParamPoly:
-    return {k: v * q for k, v in a.items() if v and q}
 
 
 # ==========================================================================
@@ -879,7 +865,7 @@ def _check_one(c: Constraint, values: CoefficientValues, params: Tuple[str, ...]
             assert lhs is not None
             lhs_num = _numeric_poly(lhs, digits)
             if rhs is not None:
-                residual = _pp_add(lhs, {zero: rhs} if rhs else {}, -1)
+                residual = poly_add(lhs, {zero: rhs} if rhs else {}, -1)
                 rhs_num = rhs.numeric(digits)
                 res_num = _numeric_poly(residual, digits)
             else:
