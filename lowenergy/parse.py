@@ -92,9 +92,11 @@ from __future__ import annotations
 import unicodedata
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Iterator, List, Optional, Tuple, Union
+from typing import Callable, Dict, Iterator, List, Optional, Tuple, TypeVar
 
 from .errors import LowEnergyError, ParseError
+
+T = TypeVar("T")
 
 __all__ = [
     "Node",
@@ -110,6 +112,7 @@ __all__ = [
     "parse_expression",
     "walk",
     "children",
+    "fold",
     "to_text",
     "equal_ignoring_columns",
     "MAX_INPUT_LENGTH",
@@ -312,6 +315,36 @@ def children(node: Node) -> Tuple[Node, ...]:
     if isinstance(node, Call):
         return node.args if node.letters is None else node.letters + node.args
     return ()
+
+
+def fold(tree: Node, leaf: Callable[[Node], T], inner: Callable[[Node, List[T]], T]) -> T:
+    """Evaluate a tree bottom-up without recursion.
+
+    ``leaf(node)`` gives the value of a ``Num``, ``Sym`` or ``Call`` (a call's
+    arguments are left to ``leaf``); ``inner(node, values)`` combines the
+    values of an operator's children, in the order of :func:`children`.
+    Long sums are deep left-leaning trees, hence the explicit stack; siblings
+    are evaluated right to left, so the right-most error is raised first.
+
+    >>> fold(parse_expression("1 + 2*3"), lambda n: n.value,
+    ...      lambda n, v: v[0] + v[1] if isinstance(n, Add) else v[0] * v[1])
+    Fraction(7, 1)
+    """
+    values: Dict[int, List[T]] = {}
+    stack: List[Tuple[Node, bool]] = [(tree, False)]
+    while stack:
+        node, ready = stack.pop()
+        if isinstance(node, (Num, Sym, Call)):
+            result = leaf(node)
+        else:
+            kids = children(node)
+            if not ready:
+                stack.append((node, True))
+                stack.extend((kid, False) for kid in kids)
+                continue
+            result = inner(node, [values[id(kid)].pop() for kid in kids])
+        values.setdefault(id(node), []).append(result)
+    return values[id(tree)].pop()
 
 
 def walk(node: Node) -> Iterator[Node]:

@@ -22,7 +22,7 @@ from fractions import Fraction
 from typing import Dict
 
 from ..errors import InputError, LowEnergyError, RegularizationError
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, children, parse_expression
+from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression
 from .element import MZV, g_value, zeta
 from .table import TableStore
 
@@ -151,49 +151,37 @@ def _g_call(node: Call, store) -> PiValue:
 
 def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStore | None = None) -> MZV:
     """Evaluate a parsed tree (iteratively; see :func:`evaluate`)."""
-    values: Dict[int, list] = {}
-    stack = [(tree, False)]
-    while stack:
-        node, ready = stack.pop()
+
+    def leaf(node: Node) -> PiValue:
         if isinstance(node, Num):
-            values.setdefault(id(node), []).append({0: MZV.rational(node.value)} if node.value else {})
-            continue
+            return {0: MZV.rational(node.value)} if node.value else {}
         if isinstance(node, Sym):
             if node.name == "pi":
-                values.setdefault(id(node), []).append({1: MZV.one()})
-                continue
+                return {1: MZV.one()}
             raise _fail(node, f"unknown name {node.name!r}", "numbers here use zeta(...), G(...; 1) and pi")
-        if isinstance(node, Call):
-            if node.name == "zeta":
-                values.setdefault(id(node), []).append(_zeta_call(node, regularize, store))
-            elif node.name == "G":
-                values.setdefault(id(node), []).append(_g_call(node, store))
-            else:
-                raise _fail(node, f"unknown function {node.name!r}", "known here: zeta(...), G(...; 1)")
-            continue
-        kids = children(node)
-        if not ready:
-            stack.append((node, True))
-            for c in kids:
-                stack.append((c, False))
-            continue
-        vals = [values[id(c)].pop() for c in kids]
+        if node.name == "zeta":
+            return _zeta_call(node, regularize, store)
+        if node.name == "G":
+            return _g_call(node, store)
+        raise _fail(node, f"unknown function {node.name!r}", "known here: zeta(...), G(...; 1)")
+
+    def inner(node: Node, vals: list) -> PiValue:
         if isinstance(node, Neg):
-            res = {p: -x for p, x in vals[0].items()}
-        elif isinstance(node, Add):
-            res = _add(vals[0], vals[1])
-        elif isinstance(node, Sub):
-            res = _add(vals[0], vals[1], -1)
-        elif isinstance(node, Mul):
-            res = _mul(vals[0], vals[1])
-        elif isinstance(node, Div):
+            return {p: -x for p, x in vals[0].items()}
+        if isinstance(node, Add):
+            return _add(vals[0], vals[1])
+        if isinstance(node, Sub):
+            return _add(vals[0], vals[1], -1)
+        if isinstance(node, Mul):
+            return _mul(vals[0], vals[1])
+        if isinstance(node, Div):
             q = _rational_of(vals[1])
             if q is None:
                 raise _fail(node.right, "division by a non-rational quantity", "divide by rational numbers only")
             if q == 0:
                 raise _fail(node.right, "division by zero")
-            res = {p: x / q for p, x in vals[0].items()}
-        elif isinstance(node, Pow):
+            return {p: x / q for p, x in vals[0].items()}
+        if isinstance(node, Pow):
             e = _rational_of(vals[1])
             if e is None or e.denominator != 1:
                 raise _fail(node.exponent, "exponents must be integers", "write e.g. zeta(3)^2")
@@ -206,15 +194,14 @@ def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStor
                     raise _fail(node, "negative powers are allowed for rational numbers only")
                 if q == 0:
                     raise _fail(node, "division by zero")
-                res = {0: MZV.rational(q ** n)}
-            else:
-                res = {0: MZV.one()}
-                for _ in range(n):
-                    res = _mul(res, vals[0])
-        else:  # pragma: no cover - the parser has no other node types
-            raise _fail(node, f"unsupported syntax {type(node).__name__}")
-        values.setdefault(id(node), []).append(res)
-    final = values[id(tree)].pop()
+                return {0: MZV.rational(q ** n)}
+            res = {0: MZV.one()}
+            for _ in range(n):
+                res = _mul(res, vals[0])
+            return res
+        raise _fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
+
+    final = fold(tree, leaf, inner)
     total = MZV()
     for p, x in final.items():
         if p % 2:
