@@ -78,7 +78,7 @@ from fractions import Fraction
 from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Union
 
 from ..errors import InputError
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, children, parse_expression, to_text
+from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression, to_text
 from ..zeta.element import MZV
 from ..zeta.format import join_terms, term_text
 
@@ -343,73 +343,62 @@ def parse_polynomial(
     def fail(node: Node, message: str, hint: Optional[str] = None) -> InputError:
         return InputError(message, source=source, line=line, column=node.col, term=to_text(node), hint=hint)
 
-    values: Dict[int, List[Poly2]] = {}
-    stack: List[Tuple[Node, bool]] = [(tree, False)]
-    while stack:
-        node, ready = stack.pop()
+    def leaf(node: Node) -> Poly2:
         if isinstance(node, Num):
-            res: Poly2 = {(0, 0): node.value} if node.value else {}
-        elif isinstance(node, Sym):
+            return {(0, 0): node.value} if node.value else {}
+        if isinstance(node, Sym):
             if node.name not in names:
                 raise fail(
                     node,
                     f"unknown name {node.name!r} in a basis polynomial",
                     f"basis polynomials use {allowed} and rational numbers only",
                 )
-            res = dict(names[node.name])
-        elif isinstance(node, Call):
-            raise fail(
-                node,
-                f"function {node.name!r} is not allowed in a basis polynomial",
-                "basis polynomials have rational coefficients; MZVs belong to the coefficients",
-            )
-        else:
-            kids = children(node)
-            if not ready:
-                stack.append((node, True))
-                for c in kids:
-                    stack.append((c, False))
-                continue
-            vals = [values[id(c)].pop() for c in kids]
-            if isinstance(node, Neg):
-                res = {k: -v for k, v in vals[0].items()}
-            elif isinstance(node, Add):
-                res = _padd(vals[0], vals[1])
-            elif isinstance(node, Sub):
-                res = _padd(vals[0], vals[1], Fraction(-1))
-            elif isinstance(node, Mul):
-                a, b = vals
-                if _degree(a) + _degree(b) > MAX_BASIS_DEGREE:
-                    raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
-                if len(a) * len(b) > _MAX_PRODUCT:
-                    raise fail(node, "polynomial too large")
-                res = _pmul(a, b)
-            elif isinstance(node, Div):
-                q = _constant(vals[1])
-                if q is None:
-                    raise fail(node.right, "division by a non-constant", "divide by non-zero rational numbers only")
-                if q == 0:
-                    raise fail(node.right, "division by zero")
-                res = {k: v / q for k, v in vals[0].items()}
-            elif isinstance(node, Pow):
-                e = _constant(vals[1])
-                if e is None or e.denominator != 1 or e < 0:
-                    raise fail(
-                        node.exponent,
-                        "exponents in basis polynomials must be non-negative integers",
-                        "write e.g. s^2",
-                    )
-                n = int(e)
-                base = vals[0]
-                if n > _MAX_EXPONENT:
-                    raise fail(node.exponent, f"exponent larger than {_MAX_EXPONENT}")
-                if n and _degree(base) * n > MAX_BASIS_DEGREE:
-                    raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
-                res = _ppow(base, n)
-            else:  # pragma: no cover - the parser has no other node types
-                raise fail(node, f"unsupported syntax {type(node).__name__}")
-        values.setdefault(id(node), []).append(res)
-    return values[id(tree)].pop()
+            return dict(names[node.name])
+        raise fail(
+            node,
+            f"function {node.name!r} is not allowed in a basis polynomial",
+            "basis polynomials have rational coefficients; MZVs belong to the coefficients",
+        )
+
+    def inner(node: Node, vals: List[Poly2]) -> Poly2:
+        if isinstance(node, Neg):
+            return {k: -v for k, v in vals[0].items()}
+        if isinstance(node, Add):
+            return _padd(vals[0], vals[1])
+        if isinstance(node, Sub):
+            return _padd(vals[0], vals[1], Fraction(-1))
+        if isinstance(node, Mul):
+            a, b = vals
+            if _degree(a) + _degree(b) > MAX_BASIS_DEGREE:
+                raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
+            if len(a) * len(b) > _MAX_PRODUCT:
+                raise fail(node, "polynomial too large")
+            return _pmul(a, b)
+        if isinstance(node, Div):
+            q = _constant(vals[1])
+            if q is None:
+                raise fail(node.right, "division by a non-constant", "divide by non-zero rational numbers only")
+            if q == 0:
+                raise fail(node.right, "division by zero")
+            return {k: v / q for k, v in vals[0].items()}
+        if isinstance(node, Pow):
+            e = _constant(vals[1])
+            if e is None or e.denominator != 1 or e < 0:
+                raise fail(
+                    node.exponent,
+                    "exponents in basis polynomials must be non-negative integers",
+                    "write e.g. s^2",
+                )
+            n = int(e)
+            base = vals[0]
+            if n > _MAX_EXPONENT:
+                raise fail(node.exponent, f"exponent larger than {_MAX_EXPONENT}")
+            if n and _degree(base) * n > MAX_BASIS_DEGREE:
+                raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
+            return _ppow(base, n)
+        raise fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
+
+    return fold(tree, leaf, inner)
 
 
 # --------------------------------------------------------------------------
