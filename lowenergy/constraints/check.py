@@ -73,7 +73,7 @@ import mpmath
 from ..errors import InputError, LowEnergyError, NumericError, TableError
 from ..expansion.result import Expansion
 from ..integrand.model import poly_add, poly_scale
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, children
+from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold
 from ..words import regularize_word, word_to_indices
 from ..zeta.element import MZV, g_value, zeta
 from ..zeta.numeric import zeta_numeric
@@ -360,26 +360,19 @@ def _evaluate(
 ) -> Dict[Tuple[int, ...], object]:
     """Evaluate a validated relation tree; ``{parameter exponents: scalar}``.
 
-    Iterative post-order walk (long sums are deep left-leaning trees).
+    Bottom-up through :func:`lowenergy.parse.fold` (no recursion: long sums
+    are deep left-leaning trees).
     Errors carry columns of the relation text.
     """
     zero = (0,) * nparams
-    results: Dict[int, list] = {}
-    stack: List[Tuple[Node, bool]] = [(tree, False)]
     budget = [0]
 
-    def push(node: Node, value: dict) -> None:
-        results.setdefault(id(node), []).append(value)
-
-    while stack:
-        node, ready = stack.pop()
+    def leaf(node: Node) -> dict:
         if isinstance(node, Num):
-            push(node, {(zero, 0): ring.rational(node.value)} if node.value else {})
-            continue
+            return {(zero, 0): ring.rational(node.value)} if node.value else {}
         if isinstance(node, Sym):
             if node.name == "pi":
-                push(node, {(zero, 1): ring.rational(Fraction(1))})
-                continue
+                return {(zero, 1): ring.rational(Fraction(1))}
             ref = constraint.ref_for(node.name, node.col) if lookup is not None else None
             if ref is None:
                 raise _fail(node, f"unknown name '{node.name}'")
@@ -390,46 +383,37 @@ def _evaluate(
                 y = ring.coefficient(x)
                 if not ring.is_zero(y):
                     value[(pe, 0)] = y
-            push(node, value)
-            continue
-        if isinstance(node, Call):
-            if node.name == "zeta":
-                y = ring.zeta(tuple(int(a.value) for a in node.args))  # type: ignore[attr-defined]
-            elif node.name == "G":
-                y = ring.g(tuple(int(a.value) for a in node.letters or ()))  # type: ignore[attr-defined]
-            else:  # pragma: no cover - rejected by the static checks
-                raise _fail(node, f"unknown function '{node.name}'")
-            push(node, {} if ring.is_zero(y) else {(zero, 0): y})
-            continue
-        kids = children(node)
-        if not ready:
-            stack.append((node, True))
-            for kid in kids:
-                stack.append((kid, False))
-            continue
-        vals = [results[id(kid)].pop() for kid in kids]
+            return value
+        if node.name == "zeta":
+            y = ring.zeta(tuple(int(a.value) for a in node.args))  # type: ignore[attr-defined]
+        elif node.name == "G":
+            y = ring.g(tuple(int(a.value) for a in node.letters or ()))  # type: ignore[attr-defined]
+        else:  # pragma: no cover - rejected by the static checks
+            raise _fail(node, f"unknown function '{node.name}'")
+        return {} if ring.is_zero(y) else {(zero, 0): y}
+
+    def inner(node: Node, vals: list) -> dict:
         if isinstance(node, Neg):
-            res = {k: ring.neg(x) for k, x in vals[0].items()}
-        elif isinstance(node, Add):
-            res = _v_add(ring, vals[0], vals[1])
-        elif isinstance(node, Sub):
-            res = _v_add(ring, vals[0], vals[1], 1 if getattr(ring, "absolute", False) else -1)
-        elif isinstance(node, Mul):
-            res = _v_mul(ring, vals[0], vals[1], node, budget)
-        elif isinstance(node, Div):
+            return {k: ring.neg(x) for k, x in vals[0].items()}
+        if isinstance(node, Add):
+            return _v_add(ring, vals[0], vals[1])
+        if isinstance(node, Sub):
+            return _v_add(ring, vals[0], vals[1], 1 if getattr(ring, "absolute", False) else -1)
+        if isinstance(node, Mul):
+            return _v_mul(ring, vals[0], vals[1], node, budget)
+        if isinstance(node, Div):
             q = _v_rational(ring, vals[1], nparams)
             if q is None:  # pragma: no cover - the static checks allow rational divisors only
                 raise _fail(node.right, "division by a non-rational quantity", "divide by rational numbers only")
             if q == 0:
                 raise _fail(node.right, "division by zero")
             inv = ring.rational(1 / q)  # |1/q| in the absolute ring
-            res = {k: ring.mul(x, inv) for k, x in vals[0].items()}
-        elif isinstance(node, Pow):
-            res = _power(ring, vals[0], vals[1], node, nparams, budget)
-        else:  # pragma: no cover - the parser has no other node types
-            raise _fail(node, f"unsupported syntax {type(node).__name__}")
-        push(node, res)
-    final = results[id(tree)].pop()
+            return {k: ring.mul(x, inv) for k, x in vals[0].items()}
+        if isinstance(node, Pow):
+            return _power(ring, vals[0], vals[1], node, nparams, budget)
+        raise _fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
+
+    final = fold(tree, leaf, inner)
     out: Dict[Tuple[int, ...], object] = {}
     pi2 = None
     for (pe, p), x in final.items():
