@@ -769,11 +769,7 @@ class _Evaluator:
         if name == "G":
             if node.letters is None or len(node.args) != 1:
                 raise self.fail(node, "G needs letters, ';' and one argument", f"write G(0,1; {x})")
-            letters = []
-            for a in node.letters:
-                if not isinstance(a, Num) or a.value not in (0, 1):
-                    raise self.fail(a, "letters of G must be 0 or 1", f"write e.g. G(0,1; {x})")
-                letters.append(int(a.value))
+            letters = self.letters(node)
             if len(letters) > MAX_WORD_LENGTH:
                 raise self.fail(node, f"word longer than {MAX_WORD_LENGTH} letters")
             arg = node.args[0]
@@ -791,11 +787,7 @@ class _Evaluator:
         if name == "Lsv":
             if node.letters is None or len(node.args) != 1:
                 raise self.fail(node, "Lsv needs letters, ';' and the argument", f"write Lsv(0,1; {x})")
-            letters = []
-            for a in node.letters:
-                if not isinstance(a, Num) or a.value not in (0, 1):
-                    raise self.fail(a, "letters of Lsv must be 0 or 1", f"write e.g. Lsv(0,1; {x})")
-                letters.append(int(a.value))
+            letters = self.letters(node)
             if len(letters) > MAX_SV_WEIGHT:
                 raise self.fail(node, f"single-valued polylogarithms are built up to weight {MAX_SV_WEIGHT}")
             if self.x_argument(node.args[0]) != "x":
@@ -819,6 +811,15 @@ class _Evaluator:
             close = difflib.get_close_matches(name, known, n=1, cutoff=0.5)
             hint = (f"did you mean '{close[0]}'? " if close else "") + "known functions: zeta, log, Li, G, Lsv"
         raise self.fail(node, f"unknown function '{_short(name, 40)}'", hint)
+
+    def letters(self, node: Call) -> List[int]:
+        """The letters of ``G(...; x)`` or ``Lsv(...; x)``, each 0 or 1."""
+        out = []
+        for a in node.letters or ():
+            if not isinstance(a, Num) or a.value not in (0, 1):
+                raise self.fail(a, f"letters of {node.name} must be 0 or 1", f"write e.g. {node.name}(0,1; {self.xname})")
+            out.append(int(a.value))
+        return out
 
     def word_value(self, word: Tuple[int, ...], kind: str, node: Node, factor: int = 1) -> _Value:
         if kind == "x":
