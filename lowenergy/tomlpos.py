@@ -40,10 +40,17 @@ Examples
 from __future__ import annotations
 
 import bisect
+import os
 import re
+import sys
 from typing import Callable, Dict, List, Optional, Sequence, Tuple, TypeVar
 
 from .errors import InputError, ParseError
+
+if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
 
 __all__ = [
     "KEY_PART",
@@ -57,6 +64,8 @@ __all__ = [
     "decode_toml_text",
     "toml_error",
     "toml_type",
+    "read_file",
+    "load_toml",
 ]
 
 _BARE_KEY = r"[A-Za-z0-9_-]+"
@@ -355,3 +364,34 @@ def toml_type(value: object) -> str:
         if isinstance(value, kind):
             return name
     return "a date or time"
+
+
+def read_file(path, what: str, max_size: int) -> Tuple[str, bytes]:
+    """``(source name, raw bytes)`` of a TOML file, at most ``max_size + 1`` bytes.
+
+    Unreadable files raise :class:`~lowenergy.errors.InputError` naming the
+    file; ``what`` says what kind of file was expected ("an integrand file").
+    """
+    source = os.fspath(path) if isinstance(path, (str, bytes, os.PathLike)) else str(path)
+    if isinstance(source, bytes):
+        source = os.fsdecode(source)
+    try:
+        with open(path, "rb") as handle:
+            raw = handle.read(max_size + 1)
+    except IsADirectoryError:
+        raise InputError(f"is a directory, not {what}", source=source) from None
+    except FileNotFoundError:
+        raise InputError("no such file", source=source, hint="check the file name") from None
+    except (OSError, ValueError, TypeError) as exc:
+        raise InputError(f"cannot read the file: {exc}", source=source) from None
+    return source, raw
+
+
+def load_toml(text: str, source: str, hint: str) -> dict:
+    """``tomllib.loads`` with the package's errors (``hint`` for malformed TOML)."""
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise toml_error(exc, text, source, hint) from None
+    except RecursionError:
+        raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None

@@ -123,9 +123,7 @@ from __future__ import annotations
 
 import difflib
 import math
-import os
 import re
-import sys
 from dataclasses import dataclass, field
 from decimal import Decimal, InvalidOperation
 from fractions import Fraction
@@ -134,11 +132,6 @@ from typing import Dict, Iterator, List, Optional, Sequence, Tuple
 from ..errors import InputError, LowEnergyError, ParseError
 from ..parse import Call, Div, Node, Num, Pow, Sym, parse_expression, to_text
 from .. import tomlpos
-
-if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
-    import tomllib
-else:  # pragma: no cover
-    import tomli as tomllib
 
 __all__ = [
     "CoefficientRef",
@@ -372,18 +365,7 @@ def read_constraints(path) -> ConstraintSet:
     inconsistent content, :class:`~lowenergy.errors.ParseError` for malformed
     TOML or relations.
     """
-    source = os.fspath(path) if isinstance(path, (str, bytes, os.PathLike)) else str(path)
-    if isinstance(source, bytes):
-        source = os.fsdecode(source)
-    try:
-        with open(path, "rb") as handle:
-            raw = handle.read(MAX_FILE_SIZE + 1)
-    except IsADirectoryError:
-        raise InputError("is a directory, not a constraint file", source=source) from None
-    except FileNotFoundError:
-        raise InputError("no such file", source=source, hint="check the file name") from None
-    except (OSError, ValueError, TypeError) as exc:
-        raise InputError(f"cannot read the file: {exc}", source=source) from None
+    source, raw = tomlpos.read_file(path, "a constraint file", MAX_FILE_SIZE)
     return constraints_from_text(raw, source=source)
 
 
@@ -392,12 +374,7 @@ def constraints_from_text(text, source: str = "<constraints>") -> ConstraintSet:
     text = tomlpos.decode_toml_text(
         text, source, what="constraint", max_size=MAX_FILE_SIZE, size_hint="split the constraint set"
     )
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise tomlpos.toml_error(exc, text, source, _TOML_HINT) from None
-    except RecursionError:
-        raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None
+    data = tomlpos.load_toml(text, source, _TOML_HINT)
     layout = _Layout(text)
     return _Reader(data, layout, source).read()
 

@@ -85,14 +85,12 @@ Examples
 from __future__ import annotations
 
 import difflib
-import os
 import re
-import sys
 from fractions import Fraction
 from math import comb
 from typing import Dict, List, Optional, Sequence, Tuple
 
-from ..errors import InputError, LowEnergyError, ParseError, RegularizationError
+from ..errors import InputError, LowEnergyError, RegularizationError
 from ..words import shuffle
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
 from .. import tomlpos
@@ -100,11 +98,6 @@ from ..zeta.element import MZV, g_value, zeta
 from ..zeta.table import TableStore, default_store
 from .model import Integrand, LinearExponent, Term
 from .transform import g_of_one_minus_x, require_weight
-
-if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
-    import tomllib
-else:  # pragma: no cover
-    import tomli as tomllib
 
 __all__ = [
     "read_integrand",
@@ -174,18 +167,7 @@ def read_integrand(path, *, store: TableStore | None = None) -> Integrand:
     :class:`~lowenergy.errors.RegularizationError` for divergent MZVs and
     :class:`~lowenergy.errors.TableError` when the MZV tables are too small.
     """
-    source = os.fspath(path) if isinstance(path, (str, bytes, os.PathLike)) else str(path)
-    if isinstance(source, bytes):
-        source = os.fsdecode(source)
-    try:
-        with open(path, "rb") as handle:
-            raw = handle.read(MAX_FILE_SIZE + 1)
-    except IsADirectoryError:
-        raise InputError("is a directory, not an integrand file", source=source) from None
-    except FileNotFoundError:
-        raise InputError("no such file", source=source, hint="check the file name") from None
-    except (OSError, ValueError, TypeError) as exc:
-        raise InputError(f"cannot read the file: {exc}", source=source) from None
+    source, raw = tomlpos.read_file(path, "an integrand file", MAX_FILE_SIZE)
     return integrand_from_text(raw, source=source, store=store)
 
 
@@ -196,12 +178,7 @@ def integrand_from_text(
     text = tomlpos.decode_toml_text(
         toml_text, source, what="integrand", max_size=MAX_FILE_SIZE, size_hint="integrand files are small"
     )
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise tomlpos.toml_error(exc, text, source, f"an integrand file is TOML, e.g. {_HINT_EXAMPLE}") from None
-    except RecursionError:
-        raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None
+    data = tomlpos.load_toml(text, source, f"an integrand file is TOML, e.g. {_HINT_EXAMPLE}")
     layout = _scan_toml(text)
 
     def where(key: str) -> Optional[int]:
