@@ -95,7 +95,7 @@ from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
 
 from ..errors import InputError, LowEnergyError, ParseError
 from ..expansion.result import Expansion
-from ..integrand.model import Integrand
+from ..integrand.model import Integrand, poly_mul
 from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, _as_constraints, check, check_order, exact_sides
@@ -499,19 +499,6 @@ def _normalize(parameters: Sequence[str], solution) -> Dict[str, Affine]:
     return mapping
 
 
-def _qmul(a: QPoly, b: QPoly) -> QPoly:
-    out: QPoly = {}
-    for ka, va in a.items():
-        for kb, vb in b.items():
-            k = tuple(x + y for x, y in zip(ka, kb))
-            y = out.get(k, Fraction(0)) + va * vb
-            if y:
-                out[k] = y
-            else:
-                out.pop(k, None)
-    return out
-
-
 class _Substituter:
     def __init__(self, parameters: Sequence[str], mapping: Dict[str, Affine]) -> None:
         self.parameters = tuple(parameters)
@@ -535,7 +522,7 @@ class _Substituter:
         if key not in self._powers:
             result: QPoly = {self.zero: Fraction(1)}
             for _ in range(e):
-                result = _qmul(result, self.polys[name])
+                result = poly_mul(result, self.polys[name])
             self._powers[key] = result
         return self._powers[key]
 
@@ -551,7 +538,7 @@ class _Substituter:
                 if not e:
                     continue
                 if name in self.polys:
-                    acc = _qmul(acc, self.power(name, e))
+                    acc = poly_mul(acc, self.power(name, e))
                 else:
                     shift[self.index[name]] += e
             for k, q in acc.items():

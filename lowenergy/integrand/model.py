@@ -30,10 +30,13 @@ Poly = Dict[Tuple[int, ...], MZV]
 
 
 def poly_add(a: Poly, b: Poly, factor: int | Fraction = 1) -> Poly:
-    """``a + factor * b`` (new dict; zero coefficients dropped)."""
+    """``a + factor * b`` (new dict; zero coefficients dropped).
+
+    Works for any coefficients that add to an int 0 (MZV, Fraction, int).
+    """
     out = dict(a)
     for k, v in b.items():
-        y = out.get(k, MZV()) + v * factor
+        y = out.get(k, 0) + v * factor
         if y:
             out[k] = y
         else:
@@ -42,11 +45,12 @@ def poly_add(a: Poly, b: Poly, factor: int | Fraction = 1) -> Poly:
 
 
 def poly_mul(a: Poly, b: Poly) -> Poly:
+    """Product of two polynomials with exponent tuples of one length (any coefficients)."""
     out: Poly = {}
     for ka, va in a.items():
         for kb, vb in b.items():
             k = tuple(x + y for x, y in zip(ka, kb))
-            y = out.get(k, MZV()) + va * vb
+            y = out.get(k, 0) + va * vb
             if y:
                 out[k] = y
             else:

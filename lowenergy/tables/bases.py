@@ -80,6 +80,7 @@ from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Un
 from ..errors import InputError
 from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression, to_text
 from ..zeta.element import MZV
+from ..integrand.model import poly_add
 from ..zeta.format import join_terms, term_text
 
 __all__ = [
@@ -167,17 +168,6 @@ def parse_element_name(text: str) -> Optional[Tuple[str, int, int]]:
 # --------------------------------------------------------------------------
 
 
-def _padd(a: Poly2, b: Poly2, factor: Fraction = Fraction(1)) -> Poly2:
-    out = dict(a)
-    for k, v in b.items():
-        y = out.get(k, Fraction(0)) + v * factor
-        if y:
-            out[k] = y
-        else:
-            out.pop(k, None)
-    return out
-
-
 def _pmul(a: Poly2, b: Poly2, truncate: Optional[int] = None) -> Poly2:
     out: Poly2 = {}
     for (i1, j1), v1 in a.items():
@@ -219,7 +209,7 @@ _U: Poly2 = {(1, 0): Fraction(-1), (0, 1): Fraction(-1)}
 
 
 def _power_sum(k: int) -> Poly2:
-    return _padd(_padd(_ppow(_S, k), _ppow(_T, k)), _ppow(_U, k))
+    return poly_add(poly_add(_ppow(_S, k), _ppow(_T, k)), _ppow(_U, k))
 
 
 _SIGMA2 = _power_sum(2)
@@ -364,9 +354,9 @@ def parse_polynomial(
         if isinstance(node, Neg):
             return {k: -v for k, v in vals[0].items()}
         if isinstance(node, Add):
-            return _padd(vals[0], vals[1])
+            return poly_add(vals[0], vals[1])
         if isinstance(node, Sub):
-            return _padd(vals[0], vals[1], Fraction(-1))
+            return poly_add(vals[0], vals[1], Fraction(-1))
         if isinstance(node, Mul):
             a, b = vals
             if _degree(a) + _degree(b) > MAX_BASIS_DEGREE:
@@ -788,7 +778,7 @@ def _symmetrized(i: int, j: int, cache: Dict[Tuple[int, int], Poly2]) -> Poly2:
     if (i, j) not in cache:
         total: Poly2 = {}
         for x, y in _PERMUTATIONS:
-            total = _padd(total, _pmul(_ppow(x, i), _ppow(y, j)))
+            total = poly_add(total, _pmul(_ppow(x, i), _ppow(y, j)))
         cache[(i, j)] = {k: v / 6 for k, v in total.items()}
     return cache[(i, j)]
 
