@@ -132,6 +132,7 @@ from typing import Dict, Iterator, List, Optional, Sequence, Tuple
 from ..errors import InputError, LowEnergyError, ParseError
 from ..parse import Call, Div, Node, Num, Pow, Sym, parse_expression, to_text
 from .. import tomlpos
+from ..zeta.expression import zeta_indices
 
 __all__ = [
     "CoefficientRef",
@@ -674,15 +675,7 @@ def _validate_call(node: Call, refs, fail) -> None:
     if any(node.name == r.placeholder for r in refs):
         raise fail(node, "a coefficient cannot be called like a function", "write c[i,j]*(...) for a product")
     if name == "zeta":
-        if node.letters is not None:
-            raise fail(node, "zeta takes indices only, without ';'", "write zeta(3,5)")
-        if not node.args:
-            raise fail(node, "zeta needs at least one index", "write zeta(3)")
-        indices = []
-        for a in node.args:
-            if not isinstance(a, Num) or a.value.denominator != 1 or a.value < 1:
-                raise fail(a, "MZV indices must be positive integers", "write zeta(3,5)")
-            indices.append(int(a.value))
+        indices = zeta_indices(node, fail)
         if indices[0] == 1:
             raise fail(node, "zeta with first index 1 diverges", "the first index must be at least 2")
         if sum(indices) > MAX_MZV_WEIGHT:

@@ -95,6 +95,7 @@ from ..words import shuffle
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
 from .. import tomlpos
 from ..zeta.element import MZV, g_value, zeta
+from ..zeta.expression import zeta_indices
 from ..zeta.table import TableStore, default_store
 from .model import Integrand, LinearExponent, Term
 from .transform import g_of_one_minus_x, require_weight
@@ -808,15 +809,7 @@ class _Evaluator:
         return self.words(combination, factor)
 
     def zeta_call(self, node: Call) -> _Value:
-        if node.letters is not None:
-            raise self.fail(node, "zeta takes indices only, without ';'", "write zeta(3,5)")
-        if not node.args:
-            raise self.fail(node, "zeta needs at least one index", "write zeta(3)")
-        indices = []
-        for a in node.args:
-            if not isinstance(a, Num) or a.value.denominator != 1 or a.value < 1:
-                raise self.fail(a, "MZV indices must be positive integers", "write zeta(3,5)")
-            indices.append(int(a.value))
+        indices = zeta_indices(node, self.fail)
         if indices[0] == 1:
             raise self.fail(
                 node,

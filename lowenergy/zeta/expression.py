@@ -26,7 +26,7 @@ from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, pa
 from .element import MZV, g_value, zeta
 from .table import TableStore
 
-__all__ = ["evaluate", "evaluate_tree", "MAX_EXPONENT"]
+__all__ = ["evaluate", "evaluate_tree", "zeta_indices", "MAX_EXPONENT"]
 
 MAX_EXPONENT = 64
 
@@ -109,16 +109,26 @@ def _fail(node: Node, message: str, hint: str | None = None, cls=InputError):
     return cls(message, column=getattr(node, "col", None), term=term, hint=hint)
 
 
-def _zeta_call(node: Call, regularize, store) -> PiValue:
+def zeta_indices(node: Call, fail) -> list:
+    """The indices of a ``zeta(n1, ..., nk)`` call, checked to be positive integers.
+
+    ``fail(node, message, hint)`` builds the caller's error (with its own
+    source and line); convergence and weight limits are the caller's policy.
+    """
     if node.letters is not None:
-        raise _fail(node, "zeta takes indices only, without ';'", "write zeta(3,5)")
+        raise fail(node, "zeta takes indices only, without ';'", "write zeta(3,5)")
     if not node.args:
-        raise _fail(node, "zeta needs at least one index", "write zeta(3)")
+        raise fail(node, "zeta needs at least one index", "write zeta(3)")
     indices = []
     for a in node.args:
         if not isinstance(a, Num) or a.value.denominator != 1 or a.value < 1:
-            raise _fail(a, "MZV indices must be positive integers", "write zeta(3,5)")
+            raise fail(a, "MZV indices must be positive integers", "write zeta(3,5)")
         indices.append(int(a.value))
+    return indices
+
+
+def _zeta_call(node: Call, regularize, store) -> PiValue:
+    indices = zeta_indices(node, _fail)
     if indices[0] == 1 and regularize is None:
         raise _fail(
             node,
