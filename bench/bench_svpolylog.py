@@ -10,7 +10,7 @@
     ``<cache>/svpolylog-weight-N.json`` (written first if missing);
   - warm: the same call again in the same process (in-process cache).
   The MZV tables of weights 2..N are loaded first and timed separately.
-* the integrand ``x^(-s-1)*(1-x)^(-t-1)*Lsv(0,0,1,0,1,1; x)`` read and expanded
+* the integrand ``x^(-s-1)*(1-x)^(-t-1)*svpolylog(0,0,1,0,1,1; x)`` read and expanded
   to order 8 (coefficients up to weight 15: MZV tables to weight 15 are
   built first if missing, and that time is reported separately), cold (fresh
   process) and warm (second expansion in the same process).
@@ -85,7 +85,7 @@ from lowenergy.svpolylog import construct
 word, order = sys.argv[1], int(sys.argv[2])
 store = default_store()
 sv_json = construct._json_path(store, max(6, len(word.split(",")))).exists()
-text = f'integrand = "x^(-s-1)*(1-x)^(-t-1)*Lsv({word}; x)"'
+text = f'integrand = "x^(-s-1)*(1-x)^(-t-1)*svpolylog({word}; x)"'
 t0 = time.perf_counter()
 itg = integrand_from_text(text, source="bench")
 t_read = time.perf_counter() - t0
@@ -145,7 +145,7 @@ def main() -> None:
             f"peak {r['peak_mb']:.0f} MB{note}"
         )
 
-    print("\nintegrand x^(-s-1)*(1-x)^(-t-1)*Lsv(0,0,1,0,1,1; x), order 8 (fresh process):")
+    print("\nintegrand x^(-s-1)*(1-x)^(-t-1)*svpolylog(0,0,1,0,1,1; x), order 8 (fresh process):")
     r = run(EXPAND_CHILD, "0,0,1,0,1,1", "8")
     print(
         f"  read (incl. L_w table{' from JSON' if r['sv_json_cached'] else ' build'}) {r['read']:.3f} s, "

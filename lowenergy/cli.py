@@ -488,6 +488,12 @@ def demo() -> None:
     typer.echo("\nNext: lowenergy --help, README.md, examples/README.md")
 
 
+# Commands that live in their own modules (``lowenergy/commands/<name>.py``):
+# each module imports ``app`` and ``user_errors`` from here and registers its
+# command on import.  One import line per module, in alphabetical order.
+from .commands import _registry  # noqa: E402,F401
+
+
 def main() -> None:
     """Console entry point."""
     app(prog_name="lowenergy")

@@ -37,7 +37,7 @@ in the file):
   (``x^s*x^t`` is refused);
 * ``log(x)``, ``log(1-x)``, ``Li(n, x)``, ``Li(n, 1-x)`` (integer ``n ≥ 1``),
   ``G(a1, ..., an; x)`` and ``G(a1, ..., an; 1-x)`` (letters 0 and 1);
-  ``Lsv(a1, ..., an; x)``: Brown's single-valued polylogarithm L_w restricted
+  ``svpolylog(a1, ..., an; x)``: Brown's single-valued polylogarithm L_w restricted
   to 0 < x < 1 (z = z̄ = x), weight ≤ 8 (:mod:`lowenergy.svpolylog`);
 * products and non-negative integer powers of all these; products of sums
   are expanded.
@@ -124,7 +124,7 @@ ALLOWED_KEYS = (
     "provenance",
 )
 #: Names that may not be used for variables or parameters.
-RESERVED_NAMES = frozenset({"zeta", "pi", "G", "Li", "log", "Lsv"})
+RESERVED_NAMES = frozenset({"zeta", "pi", "G", "Li", "log", "svpolylog"})
 
 # Single-valued polylogarithms L_w(x) (Brown 2004) are available to this weight.
 MAX_SV_WEIGHT = 8
@@ -697,9 +697,9 @@ class _Evaluator:
             return {(_ZERO_EXP, _ZERO_EXP, ()): {(0, tuple(exps), ()): Fraction(1)}}
         if name == "pi":
             return self.const(MZV.one(), pi=1)
-        if name in ("zeta", "G", "Li", "log", "Lsv"):
+        if name in ("zeta", "G", "Li", "log", "svpolylog"):
             example = {"zeta": "zeta(3)", "G": f"G(0,1; {self.xname})", "Li": f"Li(2, {self.xname})",
-                       "Lsv": f"Lsv(0,1; {self.xname})"}
+                       "svpolylog": f"svpolylog(0,1; {self.xname})"}
             raise self.fail(
                 node,
                 f"'{name}' is a function",
@@ -762,14 +762,14 @@ class _Evaluator:
             if kind is None:
                 raise self.fail(arg, f"G is supported only at {x}, 1-{x} and 1", f"write G(0,1; {x})")
             return self.word_value(tuple(letters), kind, node)
-        if name == "Lsv":
+        if name == "svpolylog":
             if node.letters is None or len(node.args) != 1:
-                raise self.fail(node, "Lsv needs letters, ';' and the argument", f"write Lsv(0,1; {x})")
+                raise self.fail(node, "svpolylog needs letters, ';' and the argument", f"write svpolylog(0,1; {x})")
             letters = self.letters(node)
             if len(letters) > MAX_SV_WEIGHT:
                 raise self.fail(node, f"single-valued polylogarithms are built up to weight {MAX_SV_WEIGHT}")
             if self.x_argument(node.args[0]) != "x":
-                raise self.fail(node.args[0], f"Lsv is supported only at {x}", f"write Lsv(0,1; {x})")
+                raise self.fail(node.args[0], f"svpolylog is supported only at {x}", f"write svpolylog(0,1; {x})")
             from ..svpolylog.construct import real_line_restriction
 
             try:
@@ -781,17 +781,20 @@ class _Evaluator:
             return self.words(combination)
         if name == x or name in self.names or name == "pi":
             raise self.fail(node, f"'{name}' is not a function", f"write {name}*(...) for a product")
-        known = ["zeta", "log", "Li", "G", "Lsv"]
+        if name.lower() == "lsv":
+            raise self.fail(node, f"the spelling '{name}' is not used by lowenergy",
+                            f"write svpolylog(...; {x}) for Brown's single-valued polylogarithm")
+        known = ["zeta", "log", "Li", "G", "svpolylog"]
         aliases = {"ln": f"log({x})", "Li2": f"Li(2, {x})", "Li3": f"Li(3, {x})", "polylog": f"Li(2, {x})"}
         if name in aliases:
             hint = f"write {aliases[name]}"
         else:
             close = difflib.get_close_matches(name, known, n=1, cutoff=0.5)
-            hint = (f"did you mean '{close[0]}'? " if close else "") + "known functions: zeta, log, Li, G, Lsv"
+            hint = (f"did you mean '{close[0]}'? " if close else "") + "known functions: zeta, log, Li, G, svpolylog"
         raise self.fail(node, f"unknown function '{_short(name, 40)}'", hint)
 
     def letters(self, node: Call) -> List[int]:
-        """The letters of ``G(...; x)`` or ``Lsv(...; x)``, each 0 or 1."""
+        """The letters of ``G(...; x)`` or ``svpolylog(...; x)``, each 0 or 1."""
         out = []
         for a in node.letters or ():
             if not isinstance(a, Num) or a.value not in (0, 1):

@@ -1,10 +1,10 @@
-"""Single-valued polylogarithms in integrands: ``Lsv(a1, ..., an; x)``.
+"""Single-valued polylogarithms in integrands: ``svpolylog(a1, ..., an; x)``.
 
 Two parts.
 
 1. The reader: accepted forms, refused forms (with their messages), and exact
-   identities ``Lsv(0; x) = 2 log x``, ``Lsv(1; x) = 2 log(1-x)`` and, for
-   every word of weight ≤ 4, ``Lsv(w; x)`` = the combination derived below.
+   identities ``svpolylog(0; x) = 2 log x``, ``svpolylog(1; x) = 2 log(1-x)`` and, for
+   every word of weight ≤ 4, ``svpolylog(w; x)`` = the combination derived below.
 2. Weight-4 integrands expanded by the engine against mpmath quadrature,
    with ``L_w(x)`` evaluated by code in this file only.
 
@@ -386,9 +386,9 @@ def test_reference_low_weight_closed_forms():
 
 # (integrand text after x^(-s-1)*(1-x)^(-t-1)*, [(polynomial P(s,t), word)])
 CASES = {
-    "0101": ("(1+s-2*t)*Lsv(0,1,0,1; x)", [(lambda s, t: 1 + s - 2 * t, (0, 1, 0, 1))]),
+    "0101": ("(1+s-2*t)*svpolylog(0,1,0,1; x)", [(lambda s, t: 1 + s - 2 * t, (0, 1, 0, 1))]),
     "1101+0011": (
-        "((s-2*t)*Lsv(1,1,0,1; x) + t*Lsv(0,0,1,1; x))",
+        "((s-2*t)*svpolylog(1,1,0,1; x) + t*svpolylog(0,0,1,1; x))",
         [(lambda s, t: s - 2 * t, (1, 1, 0, 1)), (lambda s, t: t, (0, 0, 1, 1))],
     ),
 }
@@ -487,9 +487,9 @@ def g_text(combination, x="x"):
 
 def test_lsv_0_and_1_are_twice_the_logarithms():
     # L_0 = log|z|^2 = 2 log x and L_1 = log|1-z|^2 = 2 log(1-x) on 0 < x < 1
-    assert same_terms("Lsv(0; x)", "2*log(x)")
-    assert same_terms("Lsv(1; x)", "2*log(1-x)")
-    for body, other in (("Lsv(0; x)", "2*log(x)"), ("Lsv(1; x)", "2*log(1-x)")):
+    assert same_terms("svpolylog(0; x)", "2*log(x)")
+    assert same_terms("svpolylog(1; x)", "2*log(1-x)")
+    for body, other in (("svpolylog(0; x)", "2*log(x)"), ("svpolylog(1; x)", "2*log(1-x)")):
         a = integrand_from_text(f'integrand = "x^(-s-1)*(1-x)^(-t-1)*{body}"', source="a")
         b = integrand_from_text(f'integrand = "x^(-s-1)*(1-x)^(-t-1)*{other}"', source="b")
         assert canonical(a.terms) == canonical(b.terms)
@@ -497,36 +497,36 @@ def test_lsv_0_and_1_are_twice_the_logarithms():
 
 
 def test_lsv_low_weight_identities_by_hand():
-    assert same_terms("Lsv(; x)", "1")
-    assert same_terms("Lsv(0,0; x)", "2*log(x)^2")  # (log x^2)^2 / 2
-    assert same_terms("Lsv(0,0,0; x)", "4*log(x)^3/3")
+    assert same_terms("svpolylog(; x)", "1")
+    assert same_terms("svpolylog(0,0; x)", "2*log(x)^2")  # (log x^2)^2 / 2
+    assert same_terms("svpolylog(0,0,0; x)", "4*log(x)^3/3")
     # L_01(z) = G(0,1;z) + G(0;z)G(1;z̄) + G(1,0;z̄); on the real line 2 log x log(1-x)
-    assert same_terms("Lsv(0,1; x)", "2*log(x)*log(1-x)")
-    assert same_terms("Lsv(0,1; x) - Lsv(1,0; x)", "0")
+    assert same_terms("svpolylog(0,1; x)", "2*log(x)*log(1-x)")
+    assert same_terms("svpolylog(0,1; x) - svpolylog(1,0; x)", "0")
     assert same_terms(
-        "Lsv(0,0,1; x)", "G(0,0,1; x) + log(x)*G(1,0; x) + log(x)^2*log(1-x)/2 + G(1,0,0; x)"
+        "svpolylog(0,0,1; x)", "G(0,0,1; x) + log(x)*G(1,0; x) + log(x)^2*log(1-x)/2 + G(1,0,0; x)"
     )
 
 
 @pytest.mark.parametrize("word", [w for n in range(1, 5) for w in itertools.product((0, 1), repeat=n)])
 def test_lsv_equals_derived_combination(word):
-    """Exactly: Lsv(w; x) = Σ_j G(w_1..w_j) G(w_n..w_(j+1)) + κ_w ζ(3) log(1-x)."""
+    """Exactly: svpolylog(w; x) = Σ_j G(w_1..w_j) G(w_n..w_(j+1)) + κ_w ζ(3) log(1-x)."""
     expected = g_text(naive_real_line(word))
     k = kappa(word)
     if k:
         expected += f" + ({k})*zeta(3)*log(1-x)"
-    assert same_terms(f"Lsv({','.join(map(str, word))}; x)", expected)
+    assert same_terms(f"svpolylog({','.join(map(str, word))}; x)", expected)
 
 
 @pytest.mark.parametrize(
     "text",
     [
-        "Lsv(0,1; x)",
-        "Lsv( 0 , 1 ;x )",
-        "Lsv(; x)",
-        "s*Lsv(1,0,1; x)*log(x) + t^2*Lsv(0; x)^2",
-        "Lsv(0,1; x)*G(0,1; x)*Li(2, 1-x)",
-        "(1+s)*Lsv(0,0,1,0,1,1,0,1; x)",  # weight 8, the largest allowed
+        "svpolylog(0,1; x)",
+        "svpolylog( 0 , 1 ;x )",
+        "svpolylog(; x)",
+        "s*svpolylog(1,0,1; x)*log(x) + t^2*svpolylog(0; x)^2",
+        "svpolylog(0,1; x)*G(0,1; x)*Li(2, 1-x)",
+        "(1+s)*svpolylog(0,0,1,0,1,1,0,1; x)",  # weight 8, the largest allowed
     ],
 )
 def test_accepted_forms(text):
@@ -535,30 +535,32 @@ def test_accepted_forms(text):
 
 
 def test_other_integration_variable():
-    doc = 'integration_variable = "y"\nintegrand = "y^(-s-1)*(1-y)^(-t-1)*Lsv(0,1; y)"'
+    doc = 'integration_variable = "y"\nintegrand = "y^(-s-1)*(1-y)^(-t-1)*svpolylog(0,1; y)"'
     ref = 'integrand = "x^(-s-1)*(1-x)^(-t-1)*2*log(x)*log(1-x)"'
     assert canonical(integrand_from_text(doc).terms) == canonical(integrand_from_text(ref).terms)
     with pytest.raises(InputError, match="supported only at y"):
-        integrand_from_text('integration_variable = "y"\nintegrand = "y^(-s-1)*Lsv(0,1; x)"')
+        integrand_from_text('integration_variable = "y"\nintegrand = "y^(-s-1)*svpolylog(0,1; x)"')
 
 
 @pytest.mark.parametrize(
     "text, message, term",
     [
-        ("Lsv(0,2; x)", "letters of Lsv must be 0 or 1", "2"),
-        ("Lsv(0,-1; x)", "letters of Lsv must be 0 or 1", "-1"),
-        ("Lsv(1/2; x)", "letters of Lsv must be 0 or 1", "1/2"),
-        ("Lsv(a; x)", "letters of Lsv must be 0 or 1", "a"),
-        ("Lsv(0,0,0,0,0,0,0,0,1; x)", "built up to weight 8", None),
-        ("Lsv(1,1,1,1,1,1,1,1,1,1; x)", "built up to weight 8", None),
-        ("Lsv(0,1; 1-x)", "Lsv is supported only at x", "1 - x"),
-        ("Lsv(0,1; 2*x)", "Lsv is supported only at x", "2*x"),
-        ("Lsv(0,1; 1)", "Lsv is supported only at x", "1"),
-        ("Lsv(0,1; x^2)", "Lsv is supported only at x", None),
-        ("Lsv(x)", "Lsv needs letters, ';' and the argument", None),
-        ("Lsv(0,1)", "Lsv needs letters, ';' and the argument", None),
-        ("Lsv(0,1; x, x)", "Lsv needs letters, ';' and the argument", None),
-        ("lsv(0,1; x)", "did you mean 'Lsv'", None),
+        ("svpolylog(0,2; x)", "letters of svpolylog must be 0 or 1", "2"),
+        ("svpolylog(0,-1; x)", "letters of svpolylog must be 0 or 1", "-1"),
+        ("svpolylog(1/2; x)", "letters of svpolylog must be 0 or 1", "1/2"),
+        ("svpolylog(a; x)", "letters of svpolylog must be 0 or 1", "a"),
+        ("svpolylog(0,0,0,0,0,0,0,0,1; x)", "built up to weight 8", None),
+        ("svpolylog(1,1,1,1,1,1,1,1,1,1; x)", "built up to weight 8", None),
+        ("svpolylog(0,1; 1-x)", "svpolylog is supported only at x", "1 - x"),
+        ("svpolylog(0,1; 2*x)", "svpolylog is supported only at x", "2*x"),
+        ("svpolylog(0,1; 1)", "svpolylog is supported only at x", "1"),
+        ("svpolylog(0,1; x^2)", "svpolylog is supported only at x", None),
+        ("svpolylog(x)", "svpolylog needs letters, ';' and the argument", None),
+        ("svpolylog(0,1)", "svpolylog needs letters, ';' and the argument", None),
+        ("svpolylog(0,1; x, x)", "svpolylog needs letters, ';' and the argument", None),
+        ("lsv(0,1; x)", "write svpolylog(...; x)", None),
+        ("Lsv(0,1; x)", "the spelling 'Lsv' is not used", None),
+        ("svpolylo(0,1; x)", "did you mean 'svpolylog'", None),
     ],
 )
 def test_refused_forms(text, message, term):
@@ -572,12 +574,12 @@ def test_refused_forms(text, message, term):
 
 def test_lsv_is_a_reserved_name():
     with pytest.raises(InputError, match="reserved"):
-        integrand_from_text('variables = ["Lsv", "t"]\nintegrand = "x^(-Lsv-1)"')
+        integrand_from_text('variables = ["svpolylog", "t"]\nintegrand = "x^(-svpolylog-1)"')
 
 
 def test_bare_lsv_is_reported_as_a_function():
     from lowenergy.errors import InputError
     from lowenergy.integrand.reader import integrand_from_text
 
-    with pytest.raises(InputError, match="'Lsv' is a function"):
-        integrand_from_text('integrand = "x^(-s-1)*(1-x)^(-t-1)*Lsv"\n', source="bare.toml")
+    with pytest.raises(InputError, match="'svpolylog' is a function"):
+        integrand_from_text('integrand = "x^(-s-1)*(1-x)^(-t-1)*svpolylog"\n', source="bare.toml")

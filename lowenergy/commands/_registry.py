@@ -1,0 +1,4 @@
+"""Imports every command module so that its commands register on the app.
+
+One line per module, alphabetical.
+"""
