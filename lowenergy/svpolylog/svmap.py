@@ -1,16 +1,34 @@
 """The single-valued map on motivic MZVs, through the f-alphabet.
 
 F. Brown, "Single-valued motivic periods and multiple zeta values", Forum
-Math. Sigma 2 (2014), defines a ring homomorphism ``sv`` on motivic MZVs.  In
-the f-alphabet ``Q[f2] ⊗ Q<f3, f5, ...>`` (odd letters multiplied by the
-shuffle product; :mod:`lowenergy.zeta.falphabet`) it reads
+Math. Sigma 2 (2014), defines a ring homomorphism ``sv`` on motivic MZVs by
+``sv = μ ∘ (σ̃ ⊗ id) ∘ Δ``: cut with the coaction, apply to the left-hand
+(de Rham) factor the antipode twisted by the real Frobenius, multiply.  In the
+f-alphabet ``Q[f2] ⊗ Q<f3, f5, ...>`` (odd letters multiplied by the shuffle
+product; :mod:`lowenergy.zeta.falphabet`) the coaction is deconcatenation and
+the twisted antipode reverses a word without a sign (the antipode's
+``(-1)^r`` and Frobenius' ``-1`` per odd letter cancel), with ``sv(f2) = 0``.
+Which end of a word the reversed piece is cut from depends on how the f-words
+are read.
+
+**Our reading.** :mod:`lowenergy.zeta.falphabet` writes the letter ``f_r``
+split off by the infinitesimal coaction ``D_r`` *left-most*
+(``φ(ζ(5,3)) = -5 f5 f3 - …``), i.e. a word ``f_{a1} … f_{ar}`` is read from
+the outermost coaction step inwards; Brown's formula is stated for the
+opposite reading.  Translated into ours it reverses the *tail*:
 
     sv(f2) = 0,
-    sv(f_{a1} ... f_{ar}) = Σ_{j=0}^{r} (f_{aj} ... f_{a1}) ш (f_{a(j+1)} ... f_{ar}).
+    sv(f_{a1} ... f_{ar}) = Σ_{j=0}^{r} (f_{a1} ... f_{aj}) ш (f_{ar} ... f_{a(j+1)}).
 
-The formula is symmetric under reversing every word (relabel ``j -> r - j``
-and use that ш is commutative), so it does not matter on which side the
-coaction convention concatenates ``f_r``.
+The mirrored formula ``Σ_j rev(a[:j]) ш a[j:]`` agrees with this one on
+words of at most two letters and on ``f3 f3 f3`` (it differs already on
+``f3 f3 f5``), so the two readings are indistinguishable below weight 11; the first MZV that
+tells them apart is ``ζ(3,5,3)`` (and ``ζ(3,3,5)``, …).  The tests pin the
+convention there: ``sv ζ(3,5,3) = 2ζ(3,5,3) − 2ζ(3)ζ(5,3) − 10ζ(3)²ζ(5)``
+(Brown's value, in our index order) and ``sv ζ(w) = (−1)^depth L_w(1)``, the
+value at ``z = 1`` of the single-valued polylogarithm built independently in
+:mod:`.construct`.  (Before this was pinned, the mirrored formula was used and
+gave wrong values from weight 11 on.)
 
 :func:`sv` maps an :class:`~lowenergy.zeta.element.MZV` to the f-alphabet,
 applies :func:`sv_falphabet` and maps back: per weight, the f-alphabet images
@@ -47,12 +65,21 @@ __all__ = ["sv_word", "sv_falphabet", "falphabet_to_mzv", "sv"]
 
 
 def sv_word(letters: Tuple[int, ...]) -> Dict[Tuple[int, ...], int]:
-    """``sv`` of one word in the odd letters: ``Σ_j rev(a[:j]) ш a[j:]``."""
+    """``sv`` of one word in the odd letters: ``Σ_j a[:j] ш rev(a[j:])``.
+
+    In our reading of f-words (``f_r`` is the left-most, deconcatenated
+    letter); see the module docstring for the derivation.
+
+    >>> sorted(sv_word((3, 5)).items())
+    [((3, 5), 2), ((5, 3), 2)]
+    >>> sorted(sv_word((3, 5, 7)).items())     # by hand: j = 0, 1, 2, 3 give
+    [((3, 5, 7), 2), ((3, 7, 5), 2), ((7, 3, 5), 2), ((7, 5, 3), 2)]
+    """
     letters = tuple(letters)
     out: Dict[Tuple[int, ...], int] = {}
     for j in range(len(letters) + 1):
-        head = tuple(reversed(letters[:j]))
-        for word, m in shuffle(head, letters[j:]).items():
+        tail = tuple(reversed(letters[j:]))
+        for word, m in shuffle(letters[:j], tail).items():
             out[word] = out.get(word, 0) + m
     return {k: v for k, v in out.items() if v}
 
@@ -62,8 +89,8 @@ def sv_falphabet(element: Mapping[FKey, Fraction]) -> Dict[FKey, Fraction]:
 
     Terms with a positive power of ``f2`` are killed (``sv(f2) = 0``).
 
-    >>> sv_falphabet({(0, (3, 5)): 1})
-    {(0, (3, 5)): Fraction(2, 1), (0, (5, 3)): Fraction(2, 1)}
+    >>> sorted(sv_falphabet({(0, (3, 5)): 1}).items())
+    [((0, (3, 5)), Fraction(2, 1)), ((0, (5, 3)), Fraction(2, 1))]
     >>> sv_falphabet({(1, (3,)): 1})
     {}
     """
