@@ -31,8 +31,12 @@ hint):
 ``template`` (boolean, optional, default false)
     Marks a file whose numbers are invented (a template to copy); check
     reports carry a warning for it.
-``constraint`` (array of tables, required, at least one)
-    The constraints, written as ``[[constraint]]`` tables.
+``constraint`` (array of tables)
+    The constraints on Wilson coefficients, written as ``[[constraint]]``
+    tables; required unless the file has ``[[pole]]`` tables or a
+    ``[crossing]`` table (below).
+``pole``, ``crossing``
+    Pole-structure and crossing constraints (below).
 
 Keys of a ``[[constraint]]`` table:
 
@@ -71,6 +75,54 @@ Exactly one of ``rhs`` and ``rhs_value`` must be present; tolerances only go
 with ``rhs_value``, and ``rhs_value`` needs at least one of ``abs_tol``,
 ``rel_tol``, ``uncertainty``.  An inequality may have an exact ``rhs``: it is
 decided from the sign of the exact residual.
+
+Pole-structure tables, ``[[pole]]`` (any number; a file may hold only
+these).  They speak about the pole parts ``Σ_k R_k/(s−n)^k`` of the
+integral at ``s = n`` (or at ``t = n``), whose numerators ``R_k`` are
+polynomials in the other variable; ``R_1`` is the residue, with no sign
+flipped: for ``B(−s,−t) = ∫ x^(−s−1)(1−x)^(−t−1) dx`` it is
+``−(t+1)⋯(t+n)/n!``.  Keys:
+
+``variable`` (required) -- ``"s"`` (poles at s = n, numerators in t) or ``"t"``.
+``levels`` (required) -- a list of distinct integers ``0 ≤ n ≤ 200``: the
+    levels imposed.
+``max_order`` (required) -- an integer ≥ 0: no ``1/(s−n)^k`` with
+    ``k > max_order`` at these levels (0: no pole at all).
+``max_degree`` (optional) -- every numerator of order ≤ ``max_order`` has
+    degree ≤ this in the other variable: an integer, or a string linear in
+    the level ``n`` with integer coefficients, such as ``"n+1"`` (parsed by
+    :mod:`lowenergy.parse`, never evaluated as code); a negative bound at
+    some level means the numerators vanish there.
+``residues`` (optional) -- a table from level to the exact numerator, a
+    polynomial in the other variable with MZV coefficients in the
+    expression grammar (``zeta(...)``, ``G(...; 1)``, ``pi``, rationals),
+    e.g. ``residues = { 1 = "-t - 1", 2 = "-(t+1)*(t+2)/2" }``.  Levels in
+    ``check_levels`` are compared, not imposed.
+``pole_order`` (optional, default 1, needs ``residues``, at most
+    ``max_order``) -- the order k whose numerators ``residues`` gives.
+    Numerators of several orders take several tables.
+``check_levels`` (optional) -- levels checked on the solution but not
+    imposed (default: the three levels after the largest of ``levels``);
+    ``fix`` reports them as the check that the solution also meets levels
+    it was not asked to.
+``name`` (optional; default ``"pole s"``, numbered when needed), ``note``.
+
+Crossing, ``[crossing]`` (one table; ``crossing = "symmetric"`` is short for
+a table with only ``symmetry``):
+
+``symmetry`` (required) -- ``"symmetric"`` or ``"antisymmetric"``: the
+    integral is (anti)symmetric under s ↔ t (for an integrand, x ↔ 1−x).
+``order`` (default 4) -- imposed on the Laurent coefficients around
+    s = t = 0: ``c[i,j] = ±c[j,i]`` for ``i + j ≤ order`` (poles included).
+``levels`` (default: 0 up to the largest level of the file's ``[[pole]]``
+    tables, else 0, 1, 2) -- imposed on the pole parts: the numerator of
+    ``1/(s−n)^k`` equals ± that of ``1/(t−n)^k`` with s and t exchanged.
+``check_levels`` (default: the next three levels), ``name``, ``note``.
+
+All of these are exact linear conditions on the parameters of an ansatz;
+:mod:`lowenergy.constraints.fix` solves them together with the
+``[[constraint]]`` tables, and :mod:`lowenergy.constraints.check` reports
+them per level and order.
 
 Coefficient names (shared with the tables, :mod:`lowenergy.tables.bases`):
 
