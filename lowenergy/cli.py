@@ -310,6 +310,31 @@ def _load_candidate(source: str, constraints):
     return _expand_with_progress(integrand, max(required_order(constraints), 0))
 
 
+def _pole_table(integrand_or_source, sets):
+    """The integrand's pole parts to the level the [[pole]]/[crossing] tables need (None if none)."""
+    from pathlib import Path
+
+    from .constraints.model import pole_levels_needed
+    from .errors import InputError
+
+    need = pole_levels_needed(sets)
+    if need < 0:
+        return None
+    if isinstance(integrand_or_source, str):
+        if Path(integrand_or_source).suffix.lower() == ".csv":
+            raise InputError(
+                "[[pole]] and [crossing] tables need the pole parts of an integrand, not a coefficient table",
+                source=integrand_or_source,
+                hint="check the integrand file (TOML) instead of the CSV table",
+            )
+        from .integrand.reader import read_integrand
+
+        integrand_or_source = read_integrand(integrand_or_source)
+    from .spectrum.residues import residues as compute_residues
+
+    return compute_residues(integrand_or_source, need)
+
+
 @app.command()
 @user_errors
 def check(
@@ -325,8 +350,9 @@ def check(
 
     _check_digits(digits)
     cs = read_constraints(constraints_file)
+    table = _pole_table(source, [cs])
     candidate = _load_candidate(source, cs)
-    report = run_check(candidate, cs, digits=digits)
+    report = run_check(candidate, cs, digits=digits, poles=table)
     if as_json:
         typer.echo(json.dumps(report.to_dict()))
     else:
@@ -339,11 +365,13 @@ def check(
 @user_errors
 def fix(
     integrand_file: str = typer.Argument(..., metavar="INTEGRAND", help="integrand file with free parameters"),
-    constraints_file: str = typer.Argument(..., metavar="CONSTRAINTS", help="constraint file (TOML)"),
+    constraints_files: list[str] = typer.Argument(..., metavar="CONSTRAINTS...",
+                                                  help="one or more constraint files (TOML), solved together"),
     write: Optional[str] = typer.Option(None, "--write", help="write the fixed integrand file here"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
 ) -> None:
-    """Fix the free rational parameters of an integrand from exact constraints."""
+    """Fix the free rational parameters of an integrand from exact Wilson-coefficient,
+    pole and crossing constraints (one or several files)."""
     from pathlib import Path
 
     from .constraints import fix as run_fix
@@ -351,12 +379,13 @@ def fix(
     from .errors import InputError
     from .integrand.reader import read_integrand
 
-    cs = read_constraints(constraints_file)
+    sets = [read_constraints(f) for f in constraints_files]
     integrand = read_integrand(integrand_file)
     if not integrand.parameters:
         raise InputError(f"{integrand_file} has no free parameters to fix", hint="declare them with parameters = [...]")
-    expansion = _expand_with_progress(integrand, max(required_order(cs), 0))
-    report = run_fix(expansion, cs)
+    table = _pole_table(integrand, sets)
+    expansion = _expand_with_progress(integrand, max(required_order(sets), 0))
+    report = run_fix(expansion, sets, poles=table)
     text = None
     if write:
         if report.status == "inconsistent":

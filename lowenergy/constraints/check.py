@@ -670,6 +670,9 @@ class CheckReport:
     template: bool = False
     digits: int = DEFAULT_DIGITS
     warnings: Tuple[str, ...] = field(default=())
+    #: Pole and crossing conditions: ``(label, level, order, imposed, status, residual text)``
+    #: (``imposed`` False for the ``check_levels``).
+    pole_results: Tuple[Tuple[str, Optional[int], Optional[int], bool, str, str], ...] = field(default=())
 
     def __iter__(self):
         return iter(self.results)
@@ -685,15 +688,17 @@ class CheckReport:
 
     @property
     def ok(self) -> bool:
-        """True when every constraint passed."""
-        return all(r.passed for r in self.results)
+        """True when every constraint (and pole or crossing condition) passed."""
+        return all(r.passed for r in self.results) and all(p[4] == PASS for p in self.pole_results)
 
     @property
     def summary(self) -> Dict[str, int]:
         counts = {PASS: 0, FAIL: 0, DEPENDS: 0}
         for r in self.results:
             counts[r.status] += 1
-        counts["total"] = len(self.results)
+        for p in self.pole_results:
+            counts[p[4]] += 1
+        counts["total"] = len(self.results) + len(self.pole_results)
         return counts
 
     @property
@@ -723,6 +728,10 @@ class CheckReport:
                 lines.append(f"        residual ~ {format_poly(r.residual_numeric, r.parameters, digits)}{tol}")
             for w in r.warnings:
                 lines.append(f"        warning: {w}")
+        for label, _, _, imposed, status, residual in self.pole_results:
+            lines.append(f"{status:<7} {label}  [{'imposed' if imposed else 'checked only'}]")
+            if status != PASS and (verbose or status == FAIL):
+                lines.append(f"        residual = {residual}")
         s = self.summary
         lines.append(
             f"summary: {s[PASS]} passed, {s[FAIL]} failed, {s[DEPENDS]} depend on free parameters "
@@ -741,6 +750,9 @@ class CheckReport:
             "ok": self.ok,
             "warnings": list(self.warnings),
             "results": [r.to_dict(digits) for r in self.results],
+            "poles": [{"condition": label, "level": level, "order": order, "imposed": imposed, "status": status,
+                       "residual": residual}
+                      for label, level, order, imposed, status, residual in self.pole_results],
         }
 
 
@@ -929,6 +941,7 @@ def check(
     *,
     digits: int = DEFAULT_DIGITS,
     store: Optional[TableStore] = None,
+    poles=None,
 ) -> CheckReport:
     """Check ``candidate`` against ``constraints`` (a :class:`ConstraintSet`,
     a :class:`Constraint` or an iterable of them).
@@ -942,6 +955,13 @@ def check(
         Significant digits of the numeric comparisons (at least 15).
     store:
         MZV table store (default: the user's cache).
+    poles:
+        The candidate integrand's pole parts (a
+        :class:`lowenergy.spectrum.residues.ResidueTable` to level
+        :func:`~lowenergy.constraints.model.pole_levels_needed`), needed when
+        the set has ``[[pole]]`` or ``[crossing]`` tables; each of their
+        conditions is reported per level and order (imposed levels and
+        ``check_levels`` alike) with PASS, FAIL or DEPENDS.
 
     Returns
     -------
@@ -956,6 +976,9 @@ def check(
     values = CoefficientValues(candidate)
     params = tuple(candidate.parameters)
     results = tuple(_check_one(c, values, params, digits, store) for c in items)
+    pole_results = ()
+    if cset is not None and (cset.poles or cset.crossing is not None):
+        pole_results = _check_poles(cset, candidate, poles, store)
     warnings = []
     if cset is not None and cset.template:
         warnings.append("this constraint set is a TEMPLATE with invented numbers; do not read physics into it")
@@ -970,4 +993,28 @@ def check(
         template=bool(cset and cset.template),
         digits=digits,
         warnings=tuple(warnings),
+        pole_results=pole_results,
     )
+
+
+def _check_poles(cset: ConstraintSet, candidate: Expansion, poles, store):
+    from .model import pole_levels_needed
+    from .poles import check_table
+
+    if poles is None:
+        raise InputError(
+            f"{cset.source} has [[pole]] or [crossing] tables, which need the pole parts of an integrand",
+            source=cset.source,
+            hint="check an integrand file (not a coefficient table), or pass "
+            "poles=lowenergy.spectrum.residues(integrand, N) from Python",
+        )
+    need = pole_levels_needed(cset)
+    if need > poles.levels:
+        raise InputError(f"the constraints need pole parts up to level {need}, the table has {poles.levels}",
+                         hint=f"compute residues(integrand, {need})")
+    params = tuple(candidate.parameters)
+    out = []
+    for cond, imposed in check_table([cset], poles, candidate, store):
+        residual = "; ".join(f"{what}: {format_poly(pp, params)}" for what, pp in cond.residuals if pp) or "0"
+        out.append((cond.label, cond.level, cond.order, imposed, cond.status(), residual))
+    return tuple(out)

@@ -89,6 +89,7 @@ from __future__ import annotations
 import dataclasses
 import re
 import sys
+from pathlib import Path
 from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
@@ -98,8 +99,12 @@ from ..expansion.result import Expansion
 from ..integrand.model import Integrand, poly_mul
 from ..zeta.element import MZV
 from ..zeta.table import TableStore
-from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, _as_constraints, check, check_order, exact_sides
-from .model import Constraint
+from ..zeta.format import fraction_text
+from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, check, check_order, exact_sides
+from .linalg import Echelon
+from .linalg import consistent as linalg_consistent
+from .model import Constraint, ConstraintSet, pole_levels_needed
+from .poles import Condition, crossing_contact_conditions, crossing_pole_conditions, pole_conditions
 
 if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
     import tomllib
@@ -142,16 +147,15 @@ def _rref(rows: Sequence[Row], ncols: int) -> Tuple[List[Row], List[int]]:
     return m[:r], pivots
 
 
-def _consistent(rows: Sequence[Row], n: int) -> bool:
-    """Whether the augmented system (last column = right-hand side) has a solution."""
-    _, pivots = _rref(rows, n + 1)
-    return n not in pivots
-
-
 SMALLEST_CONFLICT_BUDGET = 20000
 
 
-def _minimal_conflict(groups: Dict[str, List[Row]], n: int) -> Tuple[str, ...]:
+def _consistent(rows: Sequence[Dict[int, Fraction]], n: int) -> bool:
+    """Whether the augmented system (column n = right-hand side) has a solution."""
+    return linalg_consistent(rows, n + 1)
+
+
+def _minimal_conflict(groups: Dict[str, List[Dict[int, Fraction]]], n: int) -> Tuple[str, ...]:
     """A smallest inconsistent subset of the groups (minimal if the search is too big).
 
     Deletion filtering gives a minimal set (dropping any member leaves a
@@ -163,13 +167,13 @@ def _minimal_conflict(groups: Dict[str, List[Row]], n: int) -> Tuple[str, ...]:
     from itertools import combinations
     from math import comb
 
-    current = list(groups)
+    current = [name for name, rows in groups.items() if rows]
     for name in list(current):
         trial = [x for x in current if x != name]
         rows = [row for x in trial for row in groups[x]]
         if not _consistent(rows, n):
             current = trial
-    names = list(groups)
+    names = [name for name, rows in groups.items() if rows]
     budget = sum(comb(len(names), k) for k in range(1, len(current)))
     if budget > SMALLEST_CONFLICT_BUDGET:
         return tuple(current)
@@ -253,6 +257,22 @@ class FixReport:
         parameters; free parameters no coefficient can fix.
     fixed:
         The expansion with the solution substituted (None if inconsistent).
+    stabilisation:
+        ``[(step, level, rank)]``: the rank of the system after the pole
+        and crossing conditions of each level (ascending), then after the
+        crossing of the Laurent coefficients, then after the Wilson
+        coefficients.
+    stable_after:
+        The level after which the levels fixed nothing more (None without
+        pole or crossing tables).
+    further:
+        ``[(condition, level, status)]``: the pole and crossing conditions of
+        the levels that were checked, not imposed (``check_levels``), on the
+        solution: PASS, FAIL or DEPENDS (on free parameters).
+    residue_suggestions:
+        (under-determined, with pole tables) a greedy smallest set of
+        pole-numerator coefficients whose values would fix the free
+        parameters.
     check:
         :func:`~lowenergy.constraints.check.check` of all constraints on
         :attr:`fixed` (None if inconsistent).
@@ -273,6 +293,20 @@ class FixReport:
     unfixable: Tuple[str, ...] = ()
     fixed: Optional[Expansion] = None
     check: Optional[CheckReport] = None
+    stabilisation: List[Tuple[str, Optional[int], int]] = field(default_factory=list)
+    stable_after: Optional[int] = None
+    further: List[Tuple[str, Optional[int], str]] = field(default_factory=list)
+    residue_suggestions: Tuple[str, ...] = ()
+
+    @property
+    def further_levels(self) -> Tuple[int, ...]:
+        """The levels checked on the solution without being imposed."""
+        return tuple(sorted({lv for _, lv, _ in self.further if lv is not None}))
+
+    @property
+    def further_ok(self) -> bool:
+        """Every condition at the further levels passes."""
+        return all(status == "PASS" for _, _, status in self.further)
 
     @property
     def substitution(self) -> Dict[str, Affine]:
@@ -290,7 +324,9 @@ class FixReport:
         lines = [f"status: {self.status} ({self.equations} rational equations of rank {self.rank} "
                  f"in {len(self.parameters)} parameters)"]
         if self.used:
-            lines.append("solved with: " + ", ".join(self.used))
+            shown = list(self.used) if len(self.used) <= 12 else list(self.used[:6]) + [
+                f"... ({len(self.used) - 6} more; --json lists them all)"]
+            lines.append(f"solved with ({len(self.used)}): " + ", ".join(shown))
         if self.deferred:
             lines.append("checked afterwards: " + ", ".join(self.deferred))
         for name, value in self.solution.items():
@@ -303,8 +339,21 @@ class FixReport:
                 lines.append("coefficients that would fix them: " + ", ".join(self.suggestions))
             if self.unfixable:
                 lines.append("not fixed by any coefficient up to this order: " + ", ".join(self.unfixable))
+            if self.residue_suggestions:
+                lines.append("pole numerators that would fix them: " + "; ".join(self.residue_suggestions))
         if self.conflict:
             lines.append("conflicting constraints (smallest set found): " + ", ".join(self.conflict))
+        if self.stabilisation and any(lv is not None for _, lv, _ in self.stabilisation):
+            lines.append("stabilisation (rank after each step): "
+                         + ", ".join(f"{name}: {rank}" for name, _, rank in self.stabilisation))
+            lines.append(f"nothing more fixed after level {self.stable_after}")
+        if self.further:
+            counts = {k: sum(1 for *_, st in self.further if st == k) for k in ("PASS", "FAIL", "DEPENDS")}
+            lines.append(f"further levels, not imposed ({', '.join(map(str, self.further_levels))}): "
+                         f"{counts['PASS']} passed, {counts['FAIL']} failed, {counts['DEPENDS']} depend on free parameters")
+            for label, _, st in self.further:
+                if st != "PASS":
+                    lines.append(f"  {st} {label}")
         if self.check is not None:
             s = self.check.summary
             lines.append(f"check at the solution: {s['PASS']} passed, {s['FAIL']} failed, "
@@ -330,6 +379,11 @@ class FixReport:
             "suggestions": list(self.suggestions),
             "unfixable": list(self.unfixable),
             "check": None if self.check is None else self.check.to_dict(),
+            "stabilisation": [{"step": name, "level": lv, "rank": rank} for name, lv, rank in self.stabilisation],
+            "stable_after_level": self.stable_after,
+            "further_levels": list(self.further_levels),
+            "further": [{"condition": label, "level": lv, "status": st} for label, lv, st in self.further],
+            "residue_suggestions": list(self.residue_suggestions),
         }
 
 
@@ -354,50 +408,182 @@ def _affine_text(aff: Affine) -> str:
 # ==========================================================================
 
 
+def _collect(constraints) -> Tuple[List[ConstraintSet], Tuple[Constraint, ...]]:
+    """Constraint sets and all Wilson-coefficient constraints, names made unique.
+
+    ``constraints`` is a :class:`ConstraintSet`, a :class:`Constraint`, or an
+    iterable of either.  A name used in several files is qualified with the
+    file name, ``"c10 (b.toml)"``.
+    """
+    if isinstance(constraints, (ConstraintSet, Constraint)):
+        constraints = [constraints]
+    sets: List[ConstraintSet] = []
+    loose: List[Constraint] = []
+    for item in constraints:
+        if isinstance(item, ConstraintSet):
+            sets.append(item)
+        elif isinstance(item, Constraint):
+            loose.append(item)
+        else:
+            raise TypeError(f"expected ConstraintSet or Constraint objects, not {type(item).__name__}")
+    owners: List[Tuple[Constraint, str]] = [(c, cs.source) for cs in sets for c in cs.constraints]
+    owners += [(c, c.source) for c in loose]
+    count: Dict[str, int] = {}
+    for c, _ in owners:
+        count[c.name] = count.get(c.name, 0) + 1
+    items = []
+    for c, src in owners:
+        if count[c.name] > 1:
+            c = dataclasses.replace(c, name=f"{c.name} ({Path(src).name})")
+        items.append(c)
+    names = [c.name for c in items]
+    dup = sorted({x for x in names if names.count(x) > 1})
+    if dup:
+        raise InputError(f"constraint '{dup[0]}' appears twice in the same file", term=dup[0],
+                         hint="give constraints unique names")
+    return sets, tuple(items)
+
+
+def _pole_rows(cond: Condition, n: int, params: Sequence[str]) -> List[Dict[int, Fraction]]:
+    """Sparse rows ``{column: q, n: -q0}`` of a condition, one per residual and MZV monomial."""
+    out: List[Dict[int, Fraction]] = []
+    for what, pp in cond.residuals:
+        rows: Dict[tuple, Dict[int, Fraction]] = {}
+        for pe, x in pp.items():
+            if sum(pe) > 1:
+                raise InputError(
+                    f"'{cond.label}' is not linear in the parameters ({what} contains {_mono_text(pe, params)})",
+                    source=cond.source, line=cond.line, term=_mono_text(pe, params),
+                    hint="pole and crossing constraints fix integrands that are linear in their parameters",
+                )
+            col = pe.index(1) if any(pe) else n
+            for mono, q in x.as_dict().items():
+                row = rows.setdefault(mono, {})
+                row[col] = row.get(col, Fraction(0)) + (q if col < n else -q)
+        out.extend(r for r in rows.values() if any(r.values()))
+    return out
+
+
+def _dense_to_sparse(row: Row) -> Dict[int, Fraction]:
+    return {k: v for k, v in enumerate(row) if v}
+
+
+def _check_pole_table(poles, params: Tuple[str, ...], sets: Sequence[ConstraintSet]) -> None:
+    if poles is None:
+        raise InputError(
+            "the constraints have [[pole]] or [crossing] tables, which need the pole parts of the integrand",
+            hint="pass poles=lowenergy.spectrum.residues(integrand, N) with N = "
+            "lowenergy.constraints.model.pole_levels_needed(constraints) (the command line does this)",
+        )
+    if tuple(poles.parameters) != params:
+        raise InputError(
+            f"the pole table has parameters {list(poles.parameters)}, the expansion {list(params)}",
+            hint="compute both from the same integrand",
+        )
+    need = pole_levels_needed(sets)
+    if need > poles.levels:
+        raise InputError(
+            f"the constraints need pole parts up to level {need}, the table has {poles.levels}",
+            hint=f"compute residues(integrand, {need})",
+        )
+
+
 def fix(
     expansion: Expansion,
     constraints,
     *,
     digits: int = DEFAULT_DIGITS,
     store: Optional[TableStore] = None,
+    poles=None,
 ) -> FixReport:
-    """Solve the exact equality constraints for the expansion's parameters.
+    """Solve the exact equality, pole and crossing constraints for the expansion's parameters.
+
+    Parameters
+    ----------
+    expansion:
+        The low-energy expansion of the integrand (to the order the
+        constraints need, :func:`~lowenergy.constraints.model.required_order`).
+    constraints:
+        A :class:`ConstraintSet`, a :class:`Constraint`, or a list of them
+        (several files are solved together).
+    poles:
+        The integrand's pole parts (a
+        :class:`lowenergy.spectrum.residues.ResidueTable`, to level
+        :func:`~lowenergy.constraints.model.pole_levels_needed`); needed
+        only when the sets have ``[[pole]]`` or ``[crossing]`` tables.
 
     See the module docstring for the method and the report.  Raises
     :class:`~lowenergy.errors.InputError` for coefficients beyond the
-    expansion's order and for constraints that are not linear in the
-    parameters, :class:`~lowenergy.errors.TableError` when an MZV in a
-    relation needs tables that are not built.
+    expansion's order, for constraints that are not linear in the
+    parameters and for a missing or too short pole table,
+    :class:`~lowenergy.errors.TableError` when an MZV in a relation needs
+    tables that are not built.
     """
     if not isinstance(expansion, Expansion):
         raise TypeError(f"fix needs an Expansion, not {type(expansion).__name__}")
-    items, _ = _as_constraints(constraints)
+    sets, items = _collect(constraints)
     check_order(expansion, items)
     params = tuple(expansion.parameters)
     n = len(params)
     values = CoefficientValues(expansion)
-    groups: Dict[str, List[Row]] = {}
+    # -- the groups of rows, and the steps of the stabilisation record --
+    groups: Dict[str, List[Dict[int, Fraction]]] = {}
+    steps: Dict[object, List[str]] = {}
     deferred: List[str] = []
+    further: List[Condition] = []
+    has_poles = any(cs.poles or cs.crossing is not None for cs in sets)
+    if has_poles:
+        _check_pole_table(poles, params, sets)
+        for cs in sets:
+            conds: List[Condition] = []
+            for pole in cs.poles:
+                conds += pole_conditions(pole, poles, pole.levels, store)
+                further += pole_conditions(pole, poles, pole.check_levels, store)
+            if cs.crossing is not None:
+                conds += crossing_pole_conditions(cs.crossing, poles, cs.crossing.levels)
+                conds += crossing_contact_conditions(cs.crossing, expansion)
+                further += crossing_pole_conditions(cs.crossing, poles, cs.crossing.check_levels)
+            for cond in conds:
+                label = cond.label if len(sets) == 1 else f"{cond.label} ({Path(cond.source).name})"
+                groups[label] = _pole_rows(cond, n, params)
+                steps.setdefault(cond.level if cond.level is not None else "crossing", []).append(label)
     for c in items:
         if c.kind == "=" and c.exact:
-            groups[c.name] = _equations(c, values, params, store)
+            groups[c.name] = [_dense_to_sparse(r) for r in _equations(c, values, params, store)]
+            steps.setdefault("wilson", []).append(c.name)
         else:
             deferred.append(c.name)
-    rows = [row for g in groups.values() for row in g]
-    reduced, pivots = _rref(rows, n + 1)
-    base = dict(parameters=params, used=tuple(groups), deferred=tuple(deferred), equations=len(rows))
-    if n in pivots:
+    order = sorted(k for k in steps if isinstance(k, int)) + [k for k in ("crossing", "wilson") if k in steps]
+    echelon = Echelon(n + 1)
+    stabilisation: List[Tuple[str, Optional[int], int]] = []
+    for key in order:
+        echelon.add(row for label in steps[key] for row in groups[label])
+        name = f"level {key}" if isinstance(key, int) else (
+            "crossing of the Laurent coefficients" if key == "crossing" else "Wilson coefficients")
+        stabilisation.append((name, key if isinstance(key, int) else None, echelon.rank))
+    level_ranks = [(lv, r) for _, lv, r in stabilisation if lv is not None]
+    stable_after = None
+    if level_ranks:
+        final = level_ranks[-1][1]
+        stable_after = next(lv for lv, r in level_ranks if r == final)
+    nrows = sum(len(g) for g in groups.values())
+    base = dict(parameters=params, used=tuple(groups), deferred=tuple(deferred), equations=nrows,
+                stabilisation=stabilisation, stable_after=stable_after)
+    if not echelon.consistent:
         conflict = _minimal_conflict(groups, n)
-        return FixReport(status=INCONSISTENT, conflict=conflict, rank=len(pivots) - 1, **base)
-    free = tuple(params[k] for k in range(n) if k not in pivots)
+        return FixReport(status=INCONSISTENT, conflict=conflict, rank=echelon.rank, **base)
+    pivots = [p for p in echelon.pivots]
+    pivot_set = set(pivots)
+    free = tuple(params[k] for k in range(n) if k not in pivot_set)
     solution: Dict[str, Fraction] = {}
     dependent: Dict[str, Affine] = {}
-    for row, col in zip(reduced, pivots):
-        deps = {params[f]: -row[f] for f in range(n) if f not in pivots and row[f] != 0}
+    for col, row in echelon.solution_rows():
+        deps = {params[f]: -q for f, q in sorted(row.items()) if f < n and q}
+        const = row.get(n, Fraction(0))
         if deps:
-            dependent[params[col]] = (row[n], deps)
+            dependent[params[col]] = (const, deps)
         else:
-            solution[params[col]] = row[n]
+            solution[params[col]] = const
     # keep the parameters' own order
     solution = {p: solution[p] for p in params if p in solution}
     dependent = {p: dependent[p] for p in params if p in dependent}
@@ -407,19 +593,58 @@ def fix(
     report = check(fixed, items, digits=digits, store=store)
     status = UNIQUE if not free else UNDERDETERMINED
     depending, suggestions, unfixable = _suggest(fixed) if free else ((), (), ())
+    further_results: List[Tuple[str, Optional[int], str]] = []
+    residue_suggestions: Tuple[str, ...] = ()
+    if has_poles:
+        sub = _Substituter(params, substitution)
+        for cond in further:
+            fixed_cond = dataclasses.replace(cond, residuals=[(w, sub.poly(pp, 0)) for w, pp in cond.residuals])
+            further_results.append((cond.label, cond.level, fixed_cond.status()))
+        if free:
+            residue_suggestions = _suggest_residues(poles, sub, len(free))
     return FixReport(
         status=status,
         solution=solution,
         dependent=dependent,
         free=free,
-        rank=len(pivots),
+        rank=echelon.rank,
         depending=depending,
         suggestions=suggestions,
         unfixable=unfixable,
         fixed=fixed,
         check=report,
+        further=further_results,
+        residue_suggestions=residue_suggestions,
         **base,
     )
+
+
+def _suggest_residues(poles, sub: "_Substituter", nfree: int) -> Tuple[str, ...]:
+    """A greedy smallest set of pole-numerator coefficients that would fix the free parameters."""
+    echelon = Echelon(nfree + 1)
+    chosen: List[str] = []
+    for (v, p) in sorted(poles.poles, key=lambda k: (abs(k[1]), k[0])):
+        for k in sorted(poles.poles[(v, p)], reverse=True):
+            for power in sorted(poles.poles[(v, p)][k]):
+                pp = sub.poly(poles.poles[(v, p)][k][power], 0)
+                rows: Dict[tuple, Dict[int, Fraction]] = {}
+                for pe, x in pp.items():
+                    if sum(pe) != 1:
+                        continue
+                    col = pe.index(1)
+                    for mono, q in x.as_dict().items():
+                        rows.setdefault(mono, {})[col] = q
+                if not rows:
+                    continue
+                before = echelon.rank
+                echelon.add(rows.values())
+                if echelon.rank > before:
+                    var, other = ("s", "t") if v == 0 else ("t", "s")
+                    mono = "1" if power == 0 else (other if power == 1 else f"{other}^{power}")
+                    chosen.append(f"numerator of 1/({var}-{fraction_text(p)})^{k}, coefficient of {mono}")
+                if echelon.rank == nfree:
+                    return tuple(chosen)
+    return tuple(chosen)
 
 
 def _suggest(fixed: Expansion) -> Tuple[Tuple[str, ...], Tuple[str, ...], Tuple[str, ...]]:

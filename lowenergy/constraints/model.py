@@ -31,8 +31,12 @@ hint):
 ``template`` (boolean, optional, default false)
     Marks a file whose numbers are invented (a template to copy); check
     reports carry a warning for it.
-``constraint`` (array of tables, required, at least one)
-    The constraints, written as ``[[constraint]]`` tables.
+``constraint`` (array of tables)
+    The constraints on Wilson coefficients, written as ``[[constraint]]``
+    tables; required unless the file has ``[[pole]]`` tables or a
+    ``[crossing]`` table (below).
+``pole``, ``crossing``
+    Pole-structure and crossing constraints (below).
 
 Keys of a ``[[constraint]]`` table:
 
@@ -71,6 +75,54 @@ Exactly one of ``rhs`` and ``rhs_value`` must be present; tolerances only go
 with ``rhs_value``, and ``rhs_value`` needs at least one of ``abs_tol``,
 ``rel_tol``, ``uncertainty``.  An inequality may have an exact ``rhs``: it is
 decided from the sign of the exact residual.
+
+Pole-structure tables, ``[[pole]]`` (any number; a file may hold only
+these).  They speak about the pole parts ``Σ_k R_k/(s−n)^k`` of the
+integral at ``s = n`` (or at ``t = n``), whose numerators ``R_k`` are
+polynomials in the other variable; ``R_1`` is the residue, with no sign
+flipped: for ``B(−s,−t) = ∫ x^(−s−1)(1−x)^(−t−1) dx`` it is
+``−(t+1)⋯(t+n)/n!``.  Keys:
+
+``variable`` (required) -- ``"s"`` (poles at s = n, numerators in t) or ``"t"``.
+``levels`` (required) -- a list of distinct integers ``0 ≤ n ≤ 200``: the
+    levels imposed.
+``max_order`` (required) -- an integer ≥ 0: no ``1/(s−n)^k`` with
+    ``k > max_order`` at these levels (0: no pole at all).
+``max_degree`` (optional) -- every numerator of order ≤ ``max_order`` has
+    degree ≤ this in the other variable: an integer, or a string linear in
+    the level ``n`` with integer coefficients, such as ``"n+1"`` (parsed by
+    :mod:`lowenergy.parse`, never evaluated as code); a negative bound at
+    some level means the numerators vanish there.
+``residues`` (optional) -- a table from level to the exact numerator, a
+    polynomial in the other variable with MZV coefficients in the
+    expression grammar (``zeta(...)``, ``G(...; 1)``, ``pi``, rationals),
+    e.g. ``residues = { 1 = "-t - 1", 2 = "-(t+1)*(t+2)/2" }``.  Levels in
+    ``check_levels`` are compared, not imposed.
+``pole_order`` (optional, default 1, needs ``residues``, at most
+    ``max_order``) -- the order k whose numerators ``residues`` gives.
+    Numerators of several orders take several tables.
+``check_levels`` (optional) -- levels checked on the solution but not
+    imposed (default: the three levels after the largest of ``levels``);
+    ``fix`` reports them as the check that the solution also meets levels
+    it was not asked to.
+``name`` (optional; default ``"pole s"``, numbered when needed), ``note``.
+
+Crossing, ``[crossing]`` (one table; ``crossing = "symmetric"`` is short for
+a table with only ``symmetry``):
+
+``symmetry`` (required) -- ``"symmetric"`` or ``"antisymmetric"``: the
+    integral is (anti)symmetric under s ↔ t (for an integrand, x ↔ 1−x).
+``order`` (default 4) -- imposed on the Laurent coefficients around
+    s = t = 0: ``c[i,j] = ±c[j,i]`` for ``i + j ≤ order`` (poles included).
+``levels`` (default: 0 up to the largest level of the file's ``[[pole]]``
+    tables, else 0, 1, 2) -- imposed on the pole parts: the numerator of
+    ``1/(s−n)^k`` equals ± that of ``1/(t−n)^k`` with s and t exchanged.
+``check_levels`` (default: the next three levels), ``name``, ``note``.
+
+All of these are exact linear conditions on the parameters of an ansatz;
+:mod:`lowenergy.constraints.fix` solves them together with the
+``[[constraint]]`` tables, and :mod:`lowenergy.constraints.check` reports
+them per level and order.
 
 Coefficient names (shared with the tables, :mod:`lowenergy.tables.bases`):
 
@@ -145,6 +197,12 @@ __all__ = [
     "FAMILIES",
     "TOP_LEVEL_KEYS",
     "CONSTRAINT_KEYS",
+    "PoleConstraint",
+    "CrossingConstraint",
+    "POLE_KEYS",
+    "CROSSING_KEYS",
+    "SYMMETRIES",
+    "pole_levels_needed",
     "MAX_FILE_SIZE",
     "MAX_CONSTRAINTS",
     "MAX_INDEX",
@@ -156,7 +214,22 @@ KINDS = ("=", "<=", ">=")
 #: The coefficient families.
 FAMILIES = ("c", "sym", "sigma")
 #: Keys allowed at the top level of a constraint file.
-TOP_LEVEL_KEYS = ("title", "source", "notes", "template", "constraint")
+TOP_LEVEL_KEYS = ("title", "source", "notes", "template", "constraint", "pole", "crossing")
+#: Keys allowed in a ``[[pole]]`` table.
+POLE_KEYS = ("name", "variable", "levels", "max_order", "max_degree", "residues", "pole_order",
+             "check_levels", "note")
+#: Keys allowed in the ``[crossing]`` table.
+CROSSING_KEYS = ("name", "symmetry", "order", "levels", "check_levels", "note")
+#: The crossing symmetries and their signs.
+SYMMETRIES = {"symmetric": 1, "antisymmetric": -1}
+#: Largest level in a ``[[pole]]`` or ``[crossing]`` table.
+MAX_LEVEL = 200
+#: Largest pole order in a ``[[pole]]`` table.
+MAX_POLE_ORDER = 40
+#: Levels checked, not imposed, after the largest imposed one (default of ``check_levels``).
+DEFAULT_CHECK_LEVELS = 3
+#: Default ``order`` of the crossing table.
+DEFAULT_CROSSING_ORDER = 4
 #: Keys allowed in a ``[[constraint]]`` table.
 CONSTRAINT_KEYS = ("name", "relation", "kind", "rhs", "rhs_value", "abs_tol", "rel_tol", "uncertainty", "note")
 #: Largest constraint file, in bytes.
@@ -307,6 +380,102 @@ class Constraint:
 
 
 @dataclass(frozen=True)
+class PoleConstraint:
+    """One ``[[pole]]`` table after reading.
+
+    Attributes
+    ----------
+    name:
+        From the file, or ``"pole s"`` / ``"pole t"`` (numbered when a file
+        has several tables of one variable).
+    variable:
+        ``"s"`` (poles at s = n, numerators polynomials in t) or ``"t"``.
+    levels, check_levels:
+        The levels n imposed, and those only checked afterwards.
+    max_order:
+        No pole of order above this at the imposed levels.
+    max_degree:
+        ``(a, b)``: every numerator of order ≤ ``max_order`` at level n has
+        degree ≤ ``a·n + b`` in the other variable (a negative bound means
+        the numerator vanishes); None: no bound.  ``max_degree_text`` as
+        written.
+    residues:
+        ``((level, text, tree), ...)``: the exact numerator of order
+        ``pole_order`` at these levels (a polynomial in the other variable).
+        Levels among ``check_levels`` are compared, not imposed.
+    """
+
+    name: str
+    variable: str
+    levels: Tuple[int, ...]
+    max_order: int
+    max_degree: Optional[Tuple[int, int]] = None
+    max_degree_text: Optional[str] = None
+    residues: Tuple[Tuple[int, str, Node], ...] = field(default=(), repr=False)
+    pole_order: int = 1
+    check_levels: Tuple[int, ...] = ()
+    note: str = ""
+    source: str = "<constraints>"
+    line: Optional[int] = None
+    key_lines: Dict[str, Optional[int]] = field(default_factory=dict, repr=False, compare=False)
+
+    @property
+    def var_index(self) -> int:
+        """0 for s, 1 for t (the position of the variable in the integrand)."""
+        return 0 if self.variable == "s" else 1
+
+    @property
+    def other(self) -> str:
+        """The variable of the numerators."""
+        return "t" if self.variable == "s" else "s"
+
+    def degree_at(self, level: int) -> Optional[int]:
+        """The degree bound at ``level`` (None: no bound)."""
+        if self.max_degree is None:
+            return None
+        a, b = self.max_degree
+        return a * level + b
+
+    def residue_at(self, level: int) -> Optional[Tuple[str, Node]]:
+        """``(text, tree)`` of the given numerator at ``level``, or None."""
+        for n, text, tree in self.residues:
+            if n == level:
+                return text, tree
+        return None
+
+    def where(self, key: Optional[str] = None) -> Optional[int]:
+        """The line of ``key`` in the file (else of the table header)."""
+        if key is not None and self.key_lines.get(key) is not None:
+            return self.key_lines[key]
+        return self.line
+
+
+@dataclass(frozen=True)
+class CrossingConstraint:
+    """The ``[crossing]`` table after reading: the integral is symmetric
+    (``sign = 1``) or antisymmetric (``sign = -1``) under s ↔ t.
+
+    Imposed on the Laurent coefficients ``c[i,j] = sign·c[j,i]`` with
+    ``i + j ≤ order`` and on the pole parts at the ``levels``: the numerator
+    of ``1/(s−n)^k`` (a polynomial in t) equals ``sign`` times that of
+    ``1/(t−n)^k`` with s and t exchanged.  ``check_levels`` are checked only.
+    """
+
+    name: str
+    sign: int
+    order: int
+    levels: Tuple[int, ...]
+    check_levels: Tuple[int, ...] = ()
+    note: str = ""
+    source: str = "<constraints>"
+    line: Optional[int] = None
+
+    @property
+    def symmetry(self) -> str:
+        return "symmetric" if self.sign == 1 else "antisymmetric"
+
+
+@dataclass(frozen=True)
 class ConstraintSet:
     """A whole constraint file after reading.
 
@@ -320,6 +489,8 @@ class ConstraintSet:
     notes: str = ""
     template: bool = False
     source: str = "<constraints>"
+    poles: Tuple["PoleConstraint", ...] = ()
+    crossing: Optional["CrossingConstraint"] = None
 
     def __iter__(self) -> Iterator[Constraint]:
         return iter(self.constraints)
@@ -345,12 +516,40 @@ def required_order(constraints) -> int:
     """The smallest expansion order N that every referenced coefficient needs.
 
     ``c[i,j]`` and ``sym[i,j]`` need ``N ≥ i + j``, ``sigma[a,b]`` needs
-    ``N ≥ 2a + 3b``; the result is at least 0.  Accepts a
-    :class:`ConstraintSet`, one :class:`Constraint` or an iterable of them.
+    ``N ≥ 2a + 3b``, a ``[crossing]`` table its ``order``; the result is at
+    least 0.  Accepts a :class:`ConstraintSet`, one :class:`Constraint`, or
+    an iterable of constraints or of constraint sets.
     """
     if isinstance(constraints, Constraint):
         constraints = (constraints,)
-    return max([0] + [c.order for c in constraints])
+    need = 0
+    for c in ([constraints] if isinstance(constraints, ConstraintSet) else constraints):
+        if isinstance(c, ConstraintSet):
+            need = max([need] + [x.order for x in c.constraints])
+            if c.crossing is not None:
+                need = max(need, c.crossing.order)
+        else:
+            need = max(need, c.order)
+    return need
+
+
+def pole_levels_needed(constraints) -> int:
+    """The largest level any ``[[pole]]`` or ``[crossing]`` table imposes or
+    checks (-1 if there are none): residues must be computed that far.
+
+    Accepts a :class:`ConstraintSet` or an iterable of them (other items are
+    ignored).
+    """
+    sets = [constraints] if isinstance(constraints, ConstraintSet) else list(constraints)
+    top = -1
+    for cs in sets:
+        if not isinstance(cs, ConstraintSet):
+            continue
+        for p in cs.poles:
+            top = max([top] + list(p.levels) + list(p.check_levels))
+        if cs.crossing is not None:
+            top = max([top] + list(cs.crossing.levels) + list(cs.crossing.check_levels))
+    return top
 
 
 # ==========================================================================
@@ -404,6 +603,10 @@ class _Layout:
         self.tables: List[Dict[str, Tuple[int, int]]] = []
         self.headers: List[int] = []
         self.other_headers: Dict[str, int] = {}
+        # [[pole]] tables and the [crossing] table, like the constraints
+        self.pole_tables: List[Dict[str, Tuple[int, int]]] = []
+        self.pole_headers: List[int] = []
+        self.crossing: Dict[str, Tuple[int, int]] = {}
         self._lines = tomlpos.LineIndex(text)
         self._scan()
 
@@ -420,14 +623,19 @@ class _Layout:
                     self.headers.append(line)
                     context = {}
                     self.tables.append(context)
+                elif name == "pole":
+                    self.pole_headers.append(line)
+                    context = {}
+                    self.pole_tables.append(context)
                 else:
                     self.other_headers.setdefault(name, line)
                     context = None
                 return header.end()
             header = _TABLE_HEADER.match(text, offset)
             if header:
-                self.other_headers.setdefault(tomlpos.key_name(header.group(1)), line)
-                context = None
+                name = tomlpos.key_name(header.group(1))
+                self.other_headers.setdefault(name, line)
+                context = self.crossing if name == "crossing" and text[header.end():header.end() + 1] != "." else None
                 # skip the rest of the header line
                 end = text.find("\n", header.end())
                 return len(text) if end < 0 else end
@@ -762,9 +970,14 @@ class _Reader:
         if not isinstance(template, bool):
             raise self.error(InputError, f"'template' must be true or false, not {tomlpos.toml_type(template)}",
                              self.top_line("template"), "template", hint="write template = true")
+        poles = self.pole_tables()
+        crossing = self.crossing_table(poles)
         if "constraint" not in data:
+            if poles or crossing is not None:
+                return ConstraintSet((), provenance, title, notes, template, self.source, poles, crossing)
             raise self.error(InputError, "no constraints: missing [[constraint]] tables", None,
-                             hint="add [[constraint]] tables with name, relation, kind and rhs")
+                             hint="add [[constraint]] tables with name, relation, kind and rhs "
+                             "(or [[pole]] tables, or a [crossing] table)")
         tables = data["constraint"]
         if isinstance(tables, dict):
             raise self.error(InputError, "'constraint' must be an array of tables", self.top_line("constraint"),
@@ -788,7 +1001,7 @@ class _Reader:
                                  self.table_line(index, "name"), _short(c.name, 40), hint="names must be unique")
             seen[c.name] = self.table_line(index, "name")
             constraints.append(c)
-        return ConstraintSet(tuple(constraints), provenance, title, notes, template, self.source)
+        return ConstraintSet(tuple(constraints), provenance, title, notes, template, self.source, poles, crossing)
 
     def string_top(self, key: str) -> str:
         value = self.data[key]
@@ -935,6 +1148,243 @@ class _Reader:
             _rhs_at=rhs_at or ((self.table_spot(index, "rhs")[0] or line, None),),
         )
 
+    # -- [[pole]] tables ------------------------------------------------------
+
+    def pole_line(self, index: int, key: Optional[str] = None) -> Optional[int]:
+        if index < len(self.layout.pole_tables):
+            if key is not None and key in self.layout.pole_tables[index]:
+                return self.layout.pole_tables[index][key][0]
+            return self.layout.pole_headers[index]
+        return self.top_line("pole")
+
+    def pole_tables(self) -> Tuple[PoleConstraint, ...]:
+        if "pole" not in self.data:
+            return ()
+        tables = self.data["pole"]
+        if not isinstance(tables, list) or not tables:
+            raise self.error(InputError, "'pole' must be a non-empty array of tables", self.top_line("pole"), "pole",
+                             hint="write each pole constraint under [[pole]] (double brackets)")
+        out: List[PoleConstraint] = []
+        counts: Dict[str, int] = {}
+        for table in tables:
+            if isinstance(table, dict) and table.get("variable") in ("s", "t"):
+                counts[table["variable"]] = counts.get(table["variable"], 0) + 1
+        seen: Dict[str, Optional[int]] = {}
+        numbers: Dict[str, int] = {}
+        for index, table in enumerate(tables):
+            if not isinstance(table, dict):
+                raise self.error(InputError, f"pole table {index + 1} is {tomlpos.toml_type(table)}, not a table",
+                                 self.top_line("pole"), "pole", hint="write each pole constraint under [[pole]]")
+            p = self.pole(index, table, counts, numbers)
+            if p.name in seen:
+                where = f" (first at line {seen[p.name]})" if seen[p.name] else ""
+                raise self.error(InputError, f"duplicate pole-table name '{_short(p.name, 40)}'{where}",
+                                 p.where("name"), _short(p.name, 40), hint="give each [[pole]] table its own name")
+            seen[p.name] = p.where("name")
+            out.append(p)
+        return tuple(out)
+
+    def _levels(self, value, key: str, line: Optional[int], label: str, allow_empty: bool = False) -> Tuple[int, ...]:
+        if not isinstance(value, list) or any(isinstance(v, bool) or not isinstance(v, int) for v in value):
+            raise self.error(InputError, f"'{key}' must be a list of integers{label}", line, key,
+                             hint=f"write {key} = [1, 2, 3] (levels n >= 0)")
+        if not value and not allow_empty:
+            raise self.error(InputError, f"'{key}' is empty{label}", line, key, hint=f"write {key} = [1, 2, 3]")
+        for v in value:
+            if v < 0 or v > MAX_LEVEL:
+                raise self.error(InputError, f"level {v} in '{key}' is out of range{label}", line, key,
+                                 hint=f"levels are integers 0..{MAX_LEVEL} (poles at s = n or t = n, n >= 0)")
+        dup = sorted({v for v in value if value.count(v) > 1})
+        if dup:
+            raise self.error(InputError, f"level {dup[0]} appears twice in '{key}'{label}", line, key,
+                             hint="list every level once")
+        return tuple(sorted(value))
+
+    def _small_int(self, value, key: str, line: Optional[int], label: str, lo: int, hi: int) -> int:
+        if isinstance(value, bool) or not isinstance(value, int) or not lo <= value <= hi:
+            shown = repr(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else tomlpos.toml_type(value)
+            raise self.error(InputError, f"'{key}' must be an integer from {lo} to {hi}, not {shown}{label}",
+                             line, key, hint=f"write {key} = {max(lo, 1)}")
+        return value
+
+    def pole(self, index: int, table: dict, counts: Dict[str, int], numbers: Dict[str, int]) -> PoleConstraint:
+        label = f" in pole table {index + 1}"
+        line = self.pole_line(index)
+        for key in table:
+            if key not in POLE_KEYS:
+                err = self.unknown_key(key, POLE_KEYS, self.pole_line(index, key), label)
+                if key == "order":
+                    err.hint = "did you mean 'max_order' (or 'pole_order' for the residues)? " + (err.hint or "")
+                raise err
+        where = {key: self.pole_line(index, key) for key in table}
+        for key in ("variable", "levels", "max_order"):
+            if key not in table:
+                raise self.error(InputError, f"missing required key '{key}'{label}", line, key,
+                                 hint=_POLE_REQUIRED_HINTS[key])
+        variable = table["variable"]
+        if variable not in ("s", "t"):
+            shown = repr(variable) if isinstance(variable, str) else tomlpos.toml_type(variable)
+            raise self.error(InputError, f"'variable' must be \"s\" or \"t\", not {_short(shown, 30)}{label}",
+                             where["variable"], "variable",
+                             hint='poles at s = n: variable = "s"; at t = n: variable = "t"')
+        other = "t" if variable == "s" else "s"
+        if "name" in table:
+            name = table["name"]
+            if not isinstance(name, str) or not name.strip() or len(name) > MAX_NAME_LENGTH or any(
+                not ch.isprintable() for ch in name
+            ):
+                raise self.error(InputError, f"invalid pole-table name{label}", where["name"], "name",
+                                 hint=f'a string of at most {MAX_NAME_LENGTH} printable characters, e.g. name = "poles in s"')
+        else:
+            numbers[variable] = numbers.get(variable, 0) + 1
+            name = f"pole {variable}" + (f" #{numbers[variable]}" if counts.get(variable, 0) > 1 else "")
+        label = f" in pole table '{_short(name, 40)}'"
+        levels = self._levels(table["levels"], "levels", where["levels"], label)
+        max_order = self._small_int(table["max_order"], "max_order", where["max_order"], label, 0, MAX_POLE_ORDER)
+        if "check_levels" in table:
+            check_levels = self._levels(table["check_levels"], "check_levels", where["check_levels"], label, True)
+            both = sorted(set(check_levels) & set(levels))
+            if both:
+                raise self.error(InputError, f"level {both[0]} is both imposed and only checked{label}",
+                                 where["check_levels"], "check_levels",
+                                 hint="check_levels lists levels that are NOT imposed, to test the solution on")
+        else:
+            top = max(levels)
+            check_levels = tuple(range(top + 1, min(top + DEFAULT_CHECK_LEVELS, MAX_LEVEL) + 1))
+        max_degree = max_degree_text = None
+        if "max_degree" in table:
+            max_degree, max_degree_text = self._max_degree(table["max_degree"], where["max_degree"], label)
+        pole_order = 1
+        if "pole_order" in table:
+            pole_order = self._small_int(table["pole_order"], "pole_order", where["pole_order"], label, 1, MAX_POLE_ORDER)
+            if "residues" not in table:
+                raise self.error(InputError, f"'pole_order' without 'residues'{label}", where["pole_order"],
+                                 "pole_order", hint="pole_order says which order the numerators in 'residues' belong to")
+        residues: List[Tuple[int, str, Node]] = []
+        if "residues" in table:
+            value = table["residues"]
+            rline = where["residues"]
+            if not isinstance(value, dict) or not value:
+                raise self.error(InputError, f"'residues' must be a non-empty table from level to numerator{label}",
+                                 rline, "residues", hint=f'write residues = {{ 1 = "{other} + 1" }}')
+            if pole_order > max_order:
+                raise self.error(InputError, f"'pole_order' {pole_order} exceeds 'max_order' {max_order}{label}",
+                                 where.get("pole_order", rline), "pole_order",
+                                 hint="numerators can only be given for orders up to max_order")
+            allowed = set(levels) | set(check_levels)
+            for key, text in value.items():
+                if not re.fullmatch(r"\d{1,6}", key):
+                    raise self.error(InputError, f"residues key '{_short(key, 20)}' is not a level{label}", rline,
+                                     f"residues.{_short(key, 20)}", hint='keys are levels n >= 0: residues = { 2 = "..." }')
+                level = int(key)
+                if level not in allowed:
+                    raise self.error(InputError, f"residue at level {level}, which is neither in 'levels' nor in "
+                                     f"'check_levels'{label}", rline, f"residues.{key}",
+                                     hint="add the level to levels (imposed) or check_levels (checked only)")
+                if isinstance(text, int) and not isinstance(text, bool):
+                    text = str(text)
+                if not isinstance(text, str):
+                    raise self.error(InputError, f"the residue at level {level} must be a string, not "
+                                     f"{tomlpos.toml_type(text)}{label}", rline, f"residues.{key}",
+                                     hint=f'write the numerator as text, e.g. {key} = "{other} + 1"')
+                flat = text.replace("\r", " ").replace("\n", " ")
+                try:
+                    tree = parse_expression(flat)
+                    _validate_numerator(tree, other)
+                except LowEnergyError as err:
+                    col = err.column
+                    err.source, err.line, err.column = self.source, rline, None
+                    err.message += f" (column {col} of the residue at level {level}{label}; key residues.{key})" if col \
+                        else f" (in the residue at level {level}{label}; key residues.{key})"
+                    err.args = (err.message,)
+                    raise err from None
+                residues.append((level, flat, tree))
+        note = table.get("note", "")
+        if not isinstance(note, str):
+            raise self.error(InputError, f"'note' must be a string{label}", where["note"], "note", hint='write note = "..."')
+        return PoleConstraint(name, variable, levels, max_order, max_degree, max_degree_text, tuple(sorted(residues)),
+                              pole_order, check_levels, note, self.source, line, where)
+
+    def _max_degree(self, value, line: Optional[int], label: str) -> Tuple[Tuple[int, int], str]:
+        if isinstance(value, int) and not isinstance(value, bool):
+            if abs(value) > 10**6:
+                raise self.error(InputError, f"'max_degree' is too large{label}", line, "max_degree")
+            return (0, value), str(value)
+        if not isinstance(value, str):
+            raise self.error(InputError, f"'max_degree' must be an integer or a linear expression in n, not "
+                             f"{tomlpos.toml_type(value)}{label}", line, "max_degree",
+                             hint='write max_degree = 2 or max_degree = "n+1"')
+        try:
+            tree = parse_expression(value.replace("\n", " "))
+            a, b = _linear_in_n(tree)
+        except LowEnergyError as err:
+            err.source, err.line = self.source, line
+            col, err.column = err.column, None
+            err.message += f" (column {col} of 'max_degree'{label})" if col else f" (in 'max_degree'{label})"
+            if not err.term:
+                err.term = "max_degree"
+            err.args = (err.message,)
+            raise err from None
+        if a.denominator != 1 or b.denominator != 1:
+            raise self.error(InputError, f"'max_degree' must have integer coefficients{label}", line, _short(value, 40),
+                             hint='write e.g. "n+1" or "2*n-1"')
+        if abs(a) > 1000 or abs(b) > 10**6:
+            raise self.error(InputError, f"'max_degree' is too large{label}", line, _short(value, 40))
+        return (int(a), int(b)), value
+
+    # -- [crossing] -----------------------------------------------------------
+
+    def crossing_table(self, poles: Sequence[PoleConstraint]) -> Optional[CrossingConstraint]:
+        if "crossing" not in self.data:
+            return None
+        value = self.data["crossing"]
+        line = self.top_line("crossing")
+        spots = self.layout.crossing
+        where = {key: (spots[key][0] if key in spots else line) for key in CROSSING_KEYS}
+        if isinstance(value, str):
+            value = {"symmetry": value}
+            where["symmetry"] = line
+        if not isinstance(value, dict):
+            raise self.error(InputError, f"'crossing' must be a string or a table, not {tomlpos.toml_type(value)}", line,
+                             "crossing", hint='write crossing = "symmetric" or a [crossing] table')
+        label = " in the crossing table"
+        for key in value:
+            if key not in CROSSING_KEYS:
+                raise self.unknown_key(key, CROSSING_KEYS, where.get(key, line), label)
+        if "symmetry" not in value:
+            raise self.error(InputError, f"missing required key 'symmetry'{label}", line, "symmetry",
+                             hint='write symmetry = "symmetric" or "antisymmetric"')
+        symmetry = value["symmetry"]
+        if symmetry not in SYMMETRIES:
+            shown = repr(symmetry) if isinstance(symmetry, str) else tomlpos.toml_type(symmetry)
+            raise self.error(InputError, f"unknown symmetry {_short(shown, 30)}{label}", where["symmetry"], "symmetry",
+                             hint='"symmetric" or "antisymmetric" (under s <-> t)')
+        name = value.get("name", f"crossing ({symmetry})")
+        if not isinstance(name, str) or not name.strip() or len(name) > MAX_NAME_LENGTH:
+            raise self.error(InputError, f"invalid name{label}", where["name"], "name", hint='write name = "crossing"')
+        order = DEFAULT_CROSSING_ORDER
+        if "order" in value:
+            order = self._small_int(value["order"], "order", where["order"], label, 0, MAX_INDEX)
+        if "levels" in value:
+            levels = self._levels(value["levels"], "levels", where["levels"], label, True)
+        elif poles:
+            levels = tuple(range(0, max(max(p.levels) for p in poles) + 1))
+        else:
+            levels = (0, 1, 2)
+        if "check_levels" in value:
+            check_levels = self._levels(value["check_levels"], "check_levels", where["check_levels"], label, True)
+            both = sorted(set(check_levels) & set(levels))
+            if both:
+                raise self.error(InputError, f"level {both[0]} is both imposed and only checked{label}",
+                                 where["check_levels"], "check_levels", hint="check_levels lists levels NOT imposed")
+        else:
+            top = max(levels, default=-1)
+            check_levels = tuple(range(top + 1, min(top + DEFAULT_CHECK_LEVELS, MAX_LEVEL) + 1))
+        note = value.get("note", "")
+        if not isinstance(note, str):
+            raise self.error(InputError, f"'note' must be a string{label}", where["note"], "note")
+        return CrossingConstraint(name, SYMMETRIES[symmetry], order, levels, check_levels, note, self.source, line)
+
     def table_spot(self, index: int, key: str) -> Tuple[Optional[int], Optional[int]]:
         if index < len(self.layout.tables) and key in self.layout.tables[index]:
             return self.layout.tables[index][key]
@@ -988,6 +1438,129 @@ class _Reader:
         if not signed and q < 0:
             raise self.error(InputError, f"'{key}' must not be negative{label}", line, key, hint="tolerances are >= 0")
         return q
+
+
+_POLE_REQUIRED_HINTS = {
+    "variable": 'add variable = "s" (poles at s = n) or "t"',
+    "levels": "add levels = [0, 1, 2] (the levels n imposed)",
+    "max_order": "add max_order = 1 (no 1/(s-n)^k with k > max_order)",
+}
+
+
+def _rational_constant(node: Node) -> Optional[Fraction]:
+    """The value of a tree of numbers and + - * / ^ (integer powers), else None."""
+    from ..parse import Add, Mul, Neg, Sub
+
+    def leaf(n: Node):
+        return n.value if isinstance(n, Num) else None
+
+    def inner(n: Node, vals):
+        if any(v is None for v in vals):
+            return None
+        if isinstance(n, Neg):
+            return -vals[0]
+        if isinstance(n, Add):
+            return vals[0] + vals[1]
+        if isinstance(n, Sub):
+            return vals[0] - vals[1]
+        if isinstance(n, Mul):
+            return vals[0] * vals[1]
+        if isinstance(n, Div):
+            return vals[0] / vals[1] if vals[1] else None
+        if isinstance(n, Pow):
+            base, e = vals
+            if e.denominator != 1 or abs(e) > 64 or (base == 0 and e < 0):
+                return None
+            return base ** int(e)
+        return None
+
+    from ..parse import fold
+
+    return fold(node, leaf, inner)
+
+
+def _linear_in_n(tree: Node) -> Tuple[Fraction, Fraction]:
+    """``(a, b)`` with ``tree = a·n + b`` (rationals); the only name allowed is ``n``."""
+    from ..parse import Add, Mul, Neg, Sub, fold
+
+    def fail(node: Node, message: str) -> InputError:
+        return InputError(message, column=getattr(node, "col", None), term=_short(to_text(node)),
+                          hint='max_degree is an integer or linear in the level n, e.g. "n+1" or "2*n-1"')
+
+    def leaf(node: Node):
+        if isinstance(node, Num):
+            return (Fraction(0), node.value)
+        if isinstance(node, Sym) and node.name == "n":
+            return (Fraction(1), Fraction(0))
+        if isinstance(node, Sym):
+            raise fail(node, f"unknown name '{_short(node.name, 20)}'")
+        raise fail(node, "no functions here")
+
+    def inner(node: Node, vals):
+        if isinstance(node, Call):
+            raise fail(node, "no functions here")
+        if isinstance(node, Neg):
+            return (-vals[0][0], -vals[0][1])
+        if isinstance(node, Add):
+            return (vals[0][0] + vals[1][0], vals[0][1] + vals[1][1])
+        if isinstance(node, Sub):
+            return (vals[0][0] - vals[1][0], vals[0][1] - vals[1][1])
+        if isinstance(node, Mul):
+            (a1, b1), (a2, b2) = vals
+            if a1 and a2:
+                raise fail(node, "not linear in n")
+            return (a1 * b2 + a2 * b1, b1 * b2)
+        if isinstance(node, Div):
+            (a1, b1), (a2, b2) = vals
+            if a2 or not b2:
+                raise fail(node, "division by n or by zero")
+            return (a1 / b2, b1 / b2)
+        if isinstance(node, Pow):
+            (a1, b1), (a2, b2) = vals
+            if a2 or b2.denominator != 1 or b2 < 0 or b2 > 64:
+                raise fail(node, "exponents must be small non-negative integers")
+            if b2 == 0:
+                return (Fraction(0), Fraction(1))
+            if b2 == 1:
+                return (a1, b1)
+            if a1:
+                raise fail(node, "not linear in n")
+            return (Fraction(0), b1 ** int(b2))
+        raise fail(node, "unexpected term")  # pragma: no cover
+
+    return fold(tree, leaf, inner)
+
+
+def _validate_numerator(tree: Node, other: str) -> None:
+    """Static checks of a pole numerator: a polynomial in ``other`` with MZV
+    coefficients (``zeta(...)``, ``G(...; 1)``, ``pi``), divisions by
+    rational numbers, non-negative integer powers of the variable."""
+
+    def fail(node: Node, message: str, hint: Optional[str] = None) -> InputError:
+        return InputError(message, column=getattr(node, "col", None), term=_short(to_text(node)), hint=hint)
+
+    for node in _subtree_nodes(tree):
+        if isinstance(node, Sym):
+            if node.name in (other, "pi"):
+                continue
+            hint = f"a numerator is a polynomial in {other} with MZV coefficients"
+            if node.name in ("s", "t"):
+                hint = f"the numerator of a pole in {'s' if other == 't' else 't'} is a polynomial in {other} only"
+            raise fail(node, f"unknown name '{_short(node.name, 30)}'", hint)
+        if isinstance(node, Call):
+            _validate_call(node, (), fail)
+        elif isinstance(node, Pow):
+            if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.exponent)):
+                raise fail(node.exponent, "exponents must be integers", f"write e.g. {other}^2")
+            e = _rational_constant(node.exponent)
+            if e is None or e.denominator != 1 or e < 0 or e > 1000:
+                if any(isinstance(k, Sym) and k.name == other for k in _subtree_nodes(node.base)):
+                    raise fail(node.exponent, f"powers of {other} must be integers from 0 to 1000",
+                               "a numerator is a polynomial")
+        elif isinstance(node, Div):
+            if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.right)):
+                raise fail(node.right, "division is by rational numbers only",
+                           "a numerator is a polynomial; write (t+1)*(t+2)/2")
 
 
 _REQUIRED_HINTS = {
