@@ -233,15 +233,15 @@ def test_sv_is_value_at_one_every_mzv(weight):
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("weight", [12, 13])
+@pytest.mark.parametrize("weight", [12])
 def test_sv_is_value_at_one_sample(weight):
+    # (weight 13 would need the weight-13 construction of L_w, which costs far
+    # more than the weight-12 one — about 45 min on a loaded 2-core machine)
     from lowenergy.svpolylog.construct import sv_value_at_one
 
     rng = random.Random(weight)
     sample = rng.sample(admissible_indices(weight), 12)
-    sample += [(3, 3, 3, 3), (5, 3, 5), (3, 5, 5), (3, 3, 7)] if weight == 13 else [(3, 3, 3, 3), (3, 9), (5, 7)]
+    sample += [(3, 3, 3, 3), (3, 9), (5, 7), (3, 3, 3, 2, 1)]
     for idx in sample:
-        if sum(idx) != weight:
-            continue
         expected = sv_value_at_one(_zeta_word(idx)) * (-1) ** len(idx)
         assert sv(zeta(*idx)) == expected, idx
