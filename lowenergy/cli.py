@@ -206,6 +206,8 @@ def _expand_with_progress(integrand, order: int):
 
     from .expansion.engine import expand
 
+    if getattr(integrand, "domain", "interval") == "sphere":
+        from .svpolylog.sphere import expand_sphere as expand
     n = max(len(integrand.terms), 1)
     with Progress(
         TextColumn("[bold]expanding[/bold]"), BarColumn(), TextColumn("{task.description}"),
