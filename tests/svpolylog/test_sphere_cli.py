@@ -88,3 +88,14 @@ def test_bad_sphere_file_exit_2_no_output(tmp_path):
     res = run("expand", f, "--order", 2, "--csv", out)
     assert res.exit_code == 2 and "bad.toml" in res.output and "line 2" in res.output
     assert "interval syntax" in res.output and not out.exists()
+
+
+def test_example_sphere_ansatz_is_fixed(tmp_path):
+    from pathlib import Path
+
+    ex = Path(__file__).resolve().parents[2] / "examples"
+    fixed = tmp_path / "fixed.toml"
+    res = run("fix", ex / "sphere_ansatz.toml", ex / "sphere_constraints.toml", "--write", fixed)
+    assert res.exit_code == 0, res.output
+    assert "b1 = 1/2" in res.output and "b2 = -1/2" in res.output
+    assert run("check", fixed, ex / "sphere_constraints.toml").exit_code == 0
