@@ -99,3 +99,10 @@ def test_example_sphere_ansatz_is_fixed(tmp_path):
     assert res.exit_code == 0, res.output
     assert "b1 = 1/2" in res.output and "b2 = -1/2" in res.output
     assert run("check", fixed, ex / "sphere_constraints.toml").exit_code == 0
+
+
+def test_residues_of_sphere_files_refused_not_wrong(tmp_path):
+    f = tmp_path / "shifted.toml"
+    f.write_text(SHIFTED)
+    res = run("residues", f, "--levels", 2)
+    assert res.exit_code == 2 and "not implemented" in res.output
