@@ -82,7 +82,7 @@ Examples
 >>> from lowenergy.integrand.model import LinearExponent as E
 >>> series, upoles = sphere_raw_series(E(-1, -1, 0), E(-1, -1, 1), (), 3)
 >>> series[(-1, 0)], series[(0, -1)], upoles
-(MZV(-1), MZV(-1), {})
+(MZV('-1'), MZV('-1'), {})
 >>> print(series[(2, 0)])           # -(1/S + 1/T) exp(-2ζ(3) S T (S+T) + ...)
 2*zeta(3)
 """
