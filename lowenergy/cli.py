@@ -196,6 +196,8 @@ def _basis_spec(basis: str, user_basis: list):
             name, poly = item.split("=", 1)
             pairs.append((name.strip(), poly.strip()))
         return pairs
+    if basis == "sv":
+        return basis
     if basis not in ("monomial", "symmetric", "sigma"):
         raise InputError(f"unknown basis {basis!r}", hint="use monomial, symmetric, sigma or --user-basis NAME=POLY")
     return basis
@@ -206,6 +208,8 @@ def _expand_with_progress(integrand, order: int):
 
     from .expansion.engine import expand
 
+    if getattr(integrand, "domain", "interval") == "sphere":
+        from .svpolylog.sphere import expand_sphere as expand
     n = max(len(integrand.terms), 1)
     with Progress(
         TextColumn("[bold]expanding[/bold]"), BarColumn(), TextColumn("{task.description}"),
@@ -233,7 +237,7 @@ def expand(
     csv: Optional[str] = typer.Option(None, "--csv", help="write the table as CSV (lossless)"),
     latex: Optional[str] = typer.Option(None, "--latex", help="write a LaTeX tabular"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
-    basis: str = typer.Option("monomial", "--basis", help="monomial | symmetric | sigma"),
+    basis: str = typer.Option("monomial", "--basis", help="monomial | symmetric | sigma | sv (single-valued generators)"),
     user_basis: Optional[list[str]] = typer.Option(None, "--user-basis", help="NAME=POLY in s,t (repeat)"),
     digits: int = typer.Option(20, "--digits", help="digits of the numeric column"),
     pi: bool = typer.Option(False, "--pi", help="LaTeX/terminal: powers of ζ(2) as powers of π"),
@@ -247,8 +251,14 @@ def expand(
     if order < 0 or order > 60:
         raise InputError(f"--order must be between 0 and 60, got {order}")
     spec = _basis_spec(basis, user_basis or [])
+    if spec == "sv" and (csv or latex):
+        raise InputError("--basis sv is shown on the terminal and in --json only",
+                         hint="CSV and LaTeX keep the conventional MZV basis (lossless); drop --basis sv for them")
     integrand = read_integrand(file)
     expansion = _expand_with_progress(integrand, order)
+    if spec == "sv":
+        _print_sv_basis(expansion, digits, as_json)
+        return
     # build every output in memory first: a failure writes no file
     outputs = []
     if csv:
@@ -271,6 +281,44 @@ def expand(
         typer.echo(f"wrote {path}", err=True)
 
 
+def _print_sv_basis(expansion, digits: int, as_json: bool) -> None:
+    """The monomial table with every coefficient written in single-valued
+    generators (ζ(3), ζ(5), ... and sv images of depth ≥ 2 generators)."""
+    from .svpolylog.svbasis import sv_text
+    from .tables import table_rows, to_json_dict
+
+    _, rows = table_rows(expansion, "monomial", digits)
+    texts = {}
+    for r in rows:
+        try:
+            texts[(r.name, r.param)] = sv_text(r.value)
+        except LowEnergyError as err:
+            raise err.located(term=r.name)
+    if as_json:
+        data = to_json_dict(expansion, digits=digits, basis="monomial")
+        data["basis"] = "sv"
+        by_name: dict = {}
+        for r in rows:
+            by_name.setdefault(r.name, []).append(r)
+        for term in data["terms"]:
+            group = by_name[term["name"]]
+            term["exact_conventional"] = term["exact"]
+            term["exact"] = " + ".join(
+                f"({texts[(r.name, r.param)]})" + ("" if r.param == "1" else f"*{r.param}") for r in group
+            ) if len(group) > 1 or group[0].param != "1" else texts[(group[0].name, group[0].param)]
+        typer.echo(json.dumps(data))
+        return
+    from rich.console import Console
+    from rich.table import Table
+
+    table = Table(title="low-energy expansion (single-valued generators)")
+    for col in ("coefficient", "kind", "element", "param", "exact (sv basis)", "numeric"):
+        table.add_column(col)
+    for r in rows:
+        table.add_row(r.name, r.kind, r.label, r.param, texts[(r.name, r.param)], r.numeric)
+    Console().print(table)
+
+
 @app.command()
 @user_errors
 def verify(
@@ -290,7 +338,12 @@ def verify(
     point = _parse_point(at)
     integrand = read_integrand(file)
     expansion = _expand_with_progress(integrand, order)
-    report = run_verify(integrand, expansion, point, digits=digits)
+    if integrand.domain == "sphere":
+        from .svpolylog.sphere_verify import verify_sphere
+
+        report = verify_sphere(integrand, expansion, point, digits=min(digits, 15))
+    else:
+        report = run_verify(integrand, expansion, point, digits=digits)
     typer.echo(report.summary())
     if not report.consistent:
         raise typer.Exit(1)

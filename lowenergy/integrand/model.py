@@ -116,6 +116,11 @@ class Integrand:
         The file name, for messages.
     expression:
         The integrand text as written.
+    domain:
+        ``"interval"`` (0 < x < 1) or ``"sphere"`` ((1/π) ∫ d²z over the
+        complex plane).  On the sphere ``Term.x_exp``/``y_exp`` are the
+        exponents of ``|z|²`` and ``|1-z|²`` and ``Term.word`` is the word of
+        Brown's single-valued polylogarithm ``L_w(z)``.
     """
 
     terms: list
@@ -128,6 +133,7 @@ class Integrand:
     source: str = "<integrand>"
     expression: str = ""
     extra: dict = field(default_factory=dict)
+    domain: str = "interval"
 
     @property
     def nvars(self) -> int:

@@ -61,6 +61,23 @@ Conversions (all exact): ``log(x) = G(0; x)``, ``log(1-x) = G(1; x)``,
 words; ``G(w; 1-x)`` is rewritten in ``G(u; x)`` by
 :func:`lowenergy.integrand.transform.g_of_one_minus_x`.
 
+Sphere integrands
+-----------------
+``domain = "sphere"`` (default ``"interval"``) selects
+``(1/π) ∫_C d²z ...`` over the complex plane, ``d²z = d(Re z) d(Im z)``;
+the integration variable defaults to ``z``.  The integrand may then contain
+``abs(z)^(e)`` and ``abs(1-z)^(e)`` with ``e`` an *even* integer plus a
+rational multiple of one expansion variable (the 2 written out:
+``abs(z)^(-2*s-2)``), ``log(abs(z))``, ``log(abs(1-z))``,
+``svpolylog(a1, ..., an; z)`` (Brown's L_w(z), letters 0 and 1),
+polynomials in the variables and parameters and MZV constants.  Terms are
+stored with ``x_exp``/``y_exp`` the exponents of ``|z|²`` and ``|1-z|²`` and
+``word`` the L-word (``L_u L_v = L_{u ш v}``; ``log|z|² = L_0``,
+``log|1-z|² = L_1``).  Refused with file, line and term: the interval
+syntax (``z^(e)``, ``(1-z)^(e)``, ``log(z)``, ``G(...; z)``, ``Li(n, z)``,
+which are multivalued on the sphere), a bare ``abs(z)`` or an odd power of
+it, and ``abs`` in an interval file.
+
 Hard limits (:class:`~lowenergy.errors.InputError`): integer exponents,
 exponent shifts and the coefficient of ``s`` or ``t`` in an exponent up to
 :data:`MAX_EXPONENT` in absolute value, at most
@@ -111,6 +128,7 @@ __all__ = [
     "MAX_WORD_LENGTH",
     "MAX_FILE_SIZE",
     "MAX_WORK",
+    "DOMAINS",
 ]
 
 #: The keys an integrand file may have.
@@ -122,9 +140,12 @@ ALLOWED_KEYS = (
     "parameters",
     "notes",
     "provenance",
+    "domain",
 )
+#: The integration domains: the interval 0 < x < 1 and the Riemann sphere.
+DOMAINS = ("interval", "sphere")
 #: Names that may not be used for variables or parameters.
-RESERVED_NAMES = frozenset({"zeta", "pi", "G", "Li", "log", "svpolylog"})
+RESERVED_NAMES = frozenset({"zeta", "pi", "G", "Li", "log", "svpolylog", "abs"})
 
 # Single-valued polylogarithms L_w(x) (Brown 2004) are available to this weight.
 MAX_SV_WEIGHT = 8
@@ -214,7 +235,16 @@ def integrand_from_text(
     title = string("title", "")
     notes = string("notes", "")
     provenance = string("provenance", "")
-    xname = string("integration_variable", "x")
+    domain = string("domain", "interval")
+    if domain not in DOMAINS:
+        raise InputError(
+            f"unknown domain '{_short(domain, 40)}'",
+            source=source,
+            line=where("domain"),
+            term="domain",
+            hint='write domain = "interval" (0 < x < 1, the default) or domain = "sphere" (the complex plane)',
+        )
+    xname = string("integration_variable", "z" if domain == "sphere" else "x")
     _check_name(xname, "integration_variable", source, where("integration_variable"))
 
     variables = data.get("variables", ["s", "t"])
@@ -275,6 +305,7 @@ def integrand_from_text(
         line=key_line,
         positions=positions,
         store=store,
+        domain=domain,
     )
     return Integrand(
         terms=terms,
@@ -286,6 +317,7 @@ def integrand_from_text(
         provenance=provenance,
         source=source,
         expression=integrand_text,
+        domain=domain,
     )
 
 
@@ -299,6 +331,7 @@ def terms_from_expression(
     line: Optional[int] = None,
     positions: Optional[Sequence[Tuple[int, int]]] = None,
     store: TableStore | None = None,
+    domain: str = "interval",
 ) -> List[Term]:
     """Turn an integrand expression into merged :class:`~lowenergy.integrand.model.Term` s.
 
@@ -317,6 +350,8 @@ def terms_from_expression(
         ``line``.
     store:
         MZV table store (default: the user's cache).
+    domain:
+        ``"interval"`` or ``"sphere"`` (see the module docstring).
 
     Returns
     -------
@@ -352,7 +387,8 @@ def terms_from_expression(
         tree = parse_expression(joined)
     except LowEnergyError as err:
         raise locate(err) from None
-    evaluator = _Evaluator(variables, parameters, xname, store or default_store())
+    evaluator_class = _SphereEvaluator if domain == "sphere" else _Evaluator
+    evaluator = evaluator_class(variables, parameters, xname, store or default_store())
     merged: Dict[tuple, list] = {}
     total = 0
     try:
@@ -781,6 +817,10 @@ class _Evaluator:
             return self.words(combination)
         if name == x or name in self.names or name == "pi":
             raise self.fail(node, f"'{name}' is not a function", f"write {name}*(...) for a product")
+        if name == "abs":
+            raise self.fail(node, "abs(...) belongs to sphere integrands",
+                            'add domain = "sphere" to the file for (1/pi) * integral over the complex plane; '
+                            f"on the interval write {x}^(e) and (1-{x})^(e)")
         if name.lower() == "lsv":
             raise self.fail(node, f"the spelling '{name}' is not used by lowenergy",
                             f"write svpolylog(...; {x}) for Brown's single-valued polylogarithm")
@@ -1153,3 +1193,163 @@ class _Evaluator:
             if poly:
                 out[key] = poly
         return out
+
+
+# ==========================================================================
+# sphere integrands
+# ==========================================================================
+
+class _SphereEvaluator(_Evaluator):
+    """The evaluator for ``domain = "sphere"``.
+
+    Keys are ``(exponent of |z|², exponent of |1-z|², L-word)``; the base
+    class's products (exponents add, words shuffle) apply unchanged because
+    ``L_u L_v = L_{u ш v}``.
+    """
+
+    def evaluate(self, tree: Node) -> _Value:
+        self.check_abs(tree)
+        return super().evaluate(tree)
+
+    def check_abs(self, tree: Node) -> None:
+        """``abs(...)`` only as ``abs(z)^(e)``, ``abs(1-z)^(e)`` or inside ``log(...)``."""
+        z = self.xname
+        stack: List[Tuple[Node, Optional[Node]]] = [(tree, None)]
+        while stack:
+            node, parent = stack.pop()
+            if isinstance(node, Call) and node.name == "abs":
+                ok_parent = (isinstance(parent, Pow) and parent.base is node) or (
+                    isinstance(parent, Call) and parent.name == "log"
+                )
+                if not ok_parent:
+                    raise self.fail(
+                        node,
+                        f"abs(...) must be raised to a power, e.g. abs({z})^(-2*{self.variables[0]}-2)",
+                        f"the integrand contains |{z}| and |1-{z}| only through |{z}|^(e) and |1-{z}|^(e) "
+                        "with e an even integer plus a multiple of a variable",
+                    )
+                continue
+            if isinstance(node, Call):
+                if node.name in ("log",):
+                    for arg in node.args:
+                        stack.append((arg, node))
+                continue  # other calls are checked by call()
+            if isinstance(node, Neg):
+                stack.append((node.operand, node))
+            elif isinstance(node, Pow):
+                stack.append((node.base, node))
+                stack.append((node.exponent, node))
+            elif isinstance(node, (Add, Sub, Mul, Div)):
+                stack.append((node.left, node))
+                stack.append((node.right, node))
+
+    def abs_kind(self, node: Node) -> Optional[str]:
+        """``"z"`` for ``abs(z)``, ``"1-z"`` for ``abs(1-z)``, else None."""
+        if isinstance(node, Call) and node.name == "abs" and node.letters is None and len(node.args) == 1:
+            kind = self.x_argument(node.args[0])
+            return "z" if kind == "x" else kind
+        return None
+
+    def interval_syntax(self, node: Node, what: str) -> LowEnergyError:
+        z, s, t = self.xname, self.variables[0], self.variables[1]
+        return self.fail(
+            node,
+            f"{what} is interval syntax: on the sphere it is multivalued",
+            f"a sphere integrand uses abs({z})^(-2*{s}-2), abs(1-{z})^(-2*{t}-2), log(abs({z})), "
+            f"log(abs(1-{z})) and svpolylog(...; {z}) (single-valued)",
+        )
+
+    def symbol(self, node: Sym) -> _Value:
+        if node.name == self.xname:
+            raise self.interval_syntax(node, f"a bare {self.xname}")
+        if node.name not in self.names and node.name not in ("pi", "zeta", "G", "Li", "log", "svpolylog", "abs"):
+            z = self.xname
+            known = [*self.variables, *self.parameters, "pi"]
+            close = difflib.get_close_matches(node.name, known, n=1, cutoff=0.6)
+            hint = f"did you mean '{close[0]}'? " if close else ""
+            hint += (f"known names: {', '.join(known)}; this is a sphere integrand (domain = \"sphere\"), "
+                     f"whose variable {z} enters through abs({z})^(e), abs(1-{z})^(e), log(abs({z})), "
+                     f"log(abs(1-{z})), svpolylog(...; {z})")
+            raise self.fail(node, f"unknown symbol '{_short(node.name, 40)}'", hint)
+        return super().symbol(node)
+
+    def leaf(self, node: Node) -> Optional[_Value]:
+        if isinstance(node, (Add, Sub)) and _is_one_minus_x_shape(node, self.xname):
+            raise self.interval_syntax(node, f"(1-{self.xname}) outside abs(...)")
+        return super().leaf(node)
+
+    def check_sum(self, node: Node) -> None:
+        if self.is_bare_x(node.left) or self.is_bare_x(node.right):  # type: ignore[attr-defined]
+            raise self.interval_syntax(node, f"a bare {self.xname}")
+
+    def call(self, node: Call) -> _Value:
+        name, z = node.name, self.xname
+        if name == "abs":
+            if self.abs_kind(node) is None:
+                raise self.fail(node, f"only abs({z}) and abs(1-{z}) are supported",
+                                "other moduli are not functions of the alphabet {0, 1}")
+            # the value is built by power() (or log()); this is a placeholder
+            return {}
+        if name == "log":
+            if node.letters is None and len(node.args) == 1:
+                kind = self.abs_kind(node.args[0])
+                if kind is not None:
+                    # log|z| = L_0/2, log|1-z| = L_1/2
+                    return self.words({(0,) if kind == "z" else (1,): MZV.rational(Fraction(1, 2))})
+                if self.x_argument(node.args[0]) is not None:
+                    raise self.interval_syntax(node, _node_text(node))
+            raise self.fail(node, f"only log(abs({z})) and log(abs(1-{z})) are supported on the sphere",
+                            f"write log(abs({z})) or log(abs(1-{z}))")
+        if name == "Li":
+            raise self.interval_syntax(node, _node_text(node))
+        if name == "G":
+            arg = node.args[0] if node.letters is not None and len(node.args) == 1 else None
+            if isinstance(arg, Num) and arg.value == 1:
+                return super().call(node)
+            raise self.interval_syntax(node, "G(...; " + (_node_text(arg) if arg is not None else z) + ")")
+        if name == "svpolylog":
+            if node.letters is None or len(node.args) != 1:
+                raise self.fail(node, "svpolylog needs letters, ';' and the argument", f"write svpolylog(0,1; {z})")
+            letters = self.letters(node)
+            if len(letters) > MAX_WORD_LENGTH:
+                raise self.fail(node, f"word longer than {MAX_WORD_LENGTH} letters")
+            if self.x_argument(node.args[0]) != "x":
+                raise self.fail(node.args[0], f"svpolylog is supported only at {z} on the sphere",
+                                f"write svpolylog(0,1; {z})")
+            return self.words({tuple(letters): MZV.one()})
+        return super().call(node)
+
+    def power(self, base: _Value, exponent: _Value, node: Pow) -> _Value:
+        kind = self.abs_kind(node.base)
+        if kind is None:
+            if isinstance(node.base, Sym) and node.base.name == self.xname or _is_one_minus_x_shape(
+                node.base, self.xname
+            ):
+                raise self.interval_syntax(node, _node_text(node))
+            return super().power(base, exponent, node)
+        z = self.xname
+        which = f"|{z}|" if kind == "z" else f"|1-{z}|"
+        q = self.rational_of(exponent)
+        if q is not None:
+            form = {-1: q} if q else {}
+            if q.denominator != 1:
+                form = None
+        else:
+            form = self.exponent_form(exponent, node.exponent)
+            if 0 in form and 1 in form:
+                raise self.fail(node, f"the exponent of {which} contains both {self.variables[0]} and "
+                                f"{self.variables[1]}", "each exponent may contain only one expansion variable")
+        constant = form.get(-1, Fraction(0)) if form is not None else Fraction(1, 2)
+        if form is None or constant.denominator != 1 or constant.numerator % 2:
+            raise self.fail(
+                node,
+                f"the exponent of {which} must be an even integer plus a multiple of a variable",
+                f"write abs({z})^(-2*{self.variables[0]}-2): {which}^(2A) with A an integer plus a multiple "
+                "of a variable (odd powers of |z| give no single-valued polylogarithms)",
+            )
+        var = 0 if 0 in form else (1 if 1 in form else None)
+        coeff = form.get(var, Fraction(0)) / 2 if var is not None else Fraction(0)
+        e = (int(constant) // 2, coeff, var if coeff else None)
+        self.check_exponent(e, node, which)
+        key = (e, _ZERO_EXP, ()) if kind == "z" else (_ZERO_EXP, e, ())
+        return {key: {(0, self.zero_exps, ()): Fraction(1)}}

@@ -645,6 +645,13 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
     """
     if not isinstance(levels, int) or isinstance(levels, bool) or levels < 0:
         raise InputError(f"levels must be a non-negative integer, got {levels!r}")
+    if getattr(integrand, "domain", "interval") != "interval":
+        raise InputError(
+            f"residues of {integrand.domain} integrands are not implemented yet",
+            source=integrand.source,
+            hint="the massive poles of sphere integrals need the expansion of L_w(z) at z = 0 and 1 "
+            "in z and conj(z); use expand for the massless poles",
+        )
     store = store or default_store()
     nvars = integrand.nvars
     raw: Dict[Tuple[int, Fraction], Dict[int, Poly]] = {}

@@ -61,6 +61,7 @@ import mpmath
 
 from ..errors import InputError, LowEnergyError, ParseError
 from ..parse import Mul, Num, Pow, Sym, parse_expression
+from ..expansion.result import u_pole_name
 from ..zeta.element import MZV
 from .bases import (
     BasisSpec,
@@ -109,6 +110,7 @@ MAX_ORDER = 1000
 _MAGIC = "# lowenergy coefficient table"
 _MAX_CSV_BYTES = 200_000_000
 _IDENT = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+_UPOLE_NAME = re.compile(r"c\[\s*(-?\d{1,6})\s*,\s*0\s*,\s*(-?\d{1,6})\s*\]\Z")
 
 ParamPoly = Dict[Tuple[int, ...], MZV]
 PathLike = Union[str, "os.PathLike[str]"]
@@ -138,6 +140,8 @@ class Row:
     exact: str
     numeric: str
     note: str
+    #: power of U = -s-t for U-channel pole rows ``c[i,0,k]`` (sphere), else None
+    k: Optional[int] = None
 
 
 def _check_digits(digits: object) -> int:
@@ -184,6 +188,7 @@ def _numeric_text(x: MZV, digits: int) -> str:
 
 _NOTES = {
     "pole": "pole term, kept in the monomial form",
+    "upole": "U-channel pole (U = -s-t, from z -> infinity), numerator in the first variable",
     "monomial": "",
     "symmetric": "antisymmetric part (s <-> t): not in the symmetric basis",
     "sigma": "not crossing symmetric: not in the sigma basis",
@@ -199,7 +204,7 @@ def table_rows(expansion, basis: BasisSpec = "monomial", digits: int = 20) -> Tu
     params = tuple(expansion.parameters)
     rows: List[Row] = []
 
-    def add(name, kind, i, j, label, latex, order, pp: ParamPoly, note) -> None:
+    def add(name, kind, i, j, label, latex, order, pp: ParamPoly, note, k=None) -> None:
         for pe in sorted(pp, key=_param_key):
             x = pp[pe]
             if not x:
@@ -221,6 +226,7 @@ def table_rows(expansion, basis: BasisSpec = "monomial", digits: int = 20) -> Tu
                     exact=x.to_text(),
                     numeric=_numeric_text(x, digits),
                     note=note,
+                    k=k,
                 )
             )
 
@@ -239,6 +245,22 @@ def table_rows(expansion, basis: BasisSpec = "monomial", digits: int = 20) -> Tu
             )
 
     add_monomials(pole_part(expansion), "pole", _NOTES["pole"])
+    upoles = getattr(expansion, "u_poles", None) or {}
+    for i, k in sorted(upoles, key=lambda key: (key[0] + key[1], -key[0])):
+        u = "U" if "U" not in variables and "U" not in params else "u_"
+        head = monomial_text(i, 0, variables)
+        add(
+            u_pole_name(i, k),
+            "pole",
+            i,
+            0,
+            (head + "*" if head != "1" else "") + f"{u}^{k}",
+            (monomial_latex(i, 0, variables) + " " if i else "") + f"{u}^{{{k}}}",
+            i + k,
+            upoles[(i, k)],
+            _NOTES["upole"],
+            k=k,
+        )
     for e in decomposition.elements:
         pp = decomposition.coefficients.get(e.name)
         if pp:
@@ -353,7 +375,10 @@ def to_csv_text(expansion, basis: BasisSpec = "monomial", digits: int = 20) -> s
     out.write(f"# source: {json.dumps(expansion.source or '')}\n")
     out.write(
         "# names: c[i,j] = coefficient of s^i t^j; sym[i,j] = s^i t^j + s^j t^i (i > j), s^i t^i; "
-        "sigma[a,b] = sigma2^a sigma3^b; kind remainder = part not in the basis\n"
+        "sigma[a,b] = sigma2^a sigma3^b; kind remainder = part not in the basis"
+        + ("; c[i,0,k] = coefficient of s^i u^k, u = -s-t (U-channel poles, k < 0)"
+           if getattr(expansion, "u_poles", None) else "")
+        + "\n"
     )
     writer = csv.writer(out, lineterminator="\n")
     writer.writerow(COLUMNS)
@@ -575,6 +600,7 @@ class _CsvReader:
         offset = start
         header_row = None
         coefficients: Dict[Tuple[int, int], Dict] = {}
+        upoles: Dict[Tuple[int, int], Dict] = {}
         seen: Dict[tuple, int] = {}
         previous = 0
         try:
@@ -601,7 +627,7 @@ class _CsvReader:
                         hint="quote cells that contain commas",
                     )
                 row = dict(zip(header_row, cells))
-                self.row(row, line, variables, parameters, order, basis, coefficients, seen, evaluate)
+                self.row(row, line, variables, parameters, order, basis, coefficients, seen, evaluate, upoles)
         except csv.Error as err:
             raise self.error(f"malformed CSV: {err}", offset + reader.line_num) from None
         if header_row is None:
@@ -611,16 +637,20 @@ class _CsvReader:
             clean = {pe: x for pe, x in pp.items() if x}
             if clean:
                 coeffs[key] = clean
+        ups = {key: {pe: x for pe, x in pp.items() if x} for key, pp in upoles.items()}
         return Expansion(
             variables=variables,
             parameters=parameters,
             order=order,
             coefficients=coeffs,
+            u_poles={key: pp for key, pp in ups.items() if pp},
+            domain="sphere" if ups else "interval",
             title=meta_text.get("title", ""),
             source=meta_text.get("source", ""),
         )
 
-    def row(self, row, line, variables, parameters, order, basis, coefficients, seen, evaluate) -> None:
+    def row(self, row, line, variables, parameters, order, basis, coefficients, seen, evaluate, upoles=None) -> None:
+        upoles = {} if upoles is None else upoles
         name = row["name"].strip()
         kind = row["kind"].strip()
         if kind not in ("pole", "contact", "remainder"):
@@ -642,6 +672,18 @@ class _CsvReader:
             )
         seen[key] = line
 
+        upole = _UPOLE_NAME.match(name)
+        if upole:
+            i, k = int(upole.group(1)), int(upole.group(2))
+            if kind != "pole" or k >= 0 or i < 0:
+                raise self.error(f"{name} is not a U-channel pole row", line, name,
+                                 hint="c[i,0,k] with i >= 0, k < 0 and kind pole")
+            if i + k > order:
+                raise self.error(f"{name} lies beyond the order {order} given in the header", line, name,
+                                 cls=InputError)
+            slot = upoles.setdefault((i, k), {})
+            slot[pe] = slot.get(pe, MZV()) + value
+            return
         if kind in ("pole", "remainder") or basis == "monomial":
             i = self.integer(row["i"], line, "i")
             j = self.integer(row["j"], line, "j")
@@ -773,7 +815,8 @@ def to_json_dict(expansion, digits: int = 20, basis: BasisSpec = "monomial") -> 
         term = {
             "name": first.name,
             "kind": first.kind,
-            "powers": None if first.i is None else [first.i, first.j],
+            "powers": None if first.i is None else ([first.i, first.j] if first.k is None
+                                                     else [first.i, first.j, first.k]),
             "polynomial": first.label,
             "order": first.order,
             "exact": exact,
