@@ -137,8 +137,10 @@ class IntervalSaddle:
         a, b = self.a, self.b
         lin_s = _linear_text(a, s)
         lin_t = _linear_text(b, t)
+        saddle = (f"x* = {s}/({s} + {t})" if a == b else
+                  f"x* = ({lin_s})/({lin_s} + {lin_t})".replace("+ -", "- "))
         return {
-            "saddle": f"x* = ({lin_s})/({lin_s} + {lin_t})".replace("+ -", "- "),
+            "saddle": saddle,
             "energy": f"E = {lin_s} + {lin_t}".replace("+ -", "- "),
             "factor": "K(E, x*) = x*^(E x*) (1-x*)^(E (1-x*)) sqrt(2 pi x* (1-x*)/E)",
         }
