@@ -159,13 +159,6 @@ class IntervalSaddle:
         out = out + g * h3 * h3 * inv_kappa ** 3 * Fraction(5, 24)
         return out
 
-    def log_factor(self, xs, E, digits: int) -> mpmath.mpf:
-        """``log K(E, x*)``."""
-        with mpmath.workdps(digits + 10):
-            x = mpmath.mpf(xs.numerator) / xs.denominator
-            y = mpmath.mpf((1 - xs).numerator) / (1 - xs).denominator
-            e = mpmath.mpf(E.numerator) / E.denominator if isinstance(E, Fraction) else mpmath.mpf(E)
-            return e * x * mpmath.log(x) + e * y * mpmath.log(y) + mpmath.log(2 * mpmath.pi * x * y / e) / 2
 
     # -- the integral itself -------------------------------------------------------
     def reduced_integral(self, terms: Sequence["_SaddleTerm"], xs: Fraction, E: Fraction,
