@@ -159,7 +159,6 @@ class IntervalSaddle:
         out = out + g * h3 * h3 * inv_kappa ** 3 * Fraction(5, 24)
         return out
 
-
     # -- the integral itself -------------------------------------------------------
     def reduced_integral(self, terms: Sequence["_SaddleTerm"], xs: Fraction, E: Fraction,
                          digits: int = 20) -> Tuple[mpmath.mpf, mpmath.mpf]:
