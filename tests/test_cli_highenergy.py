@@ -102,3 +102,15 @@ def test_shifts_bad_inputs_exit_2(tmp_path):
     assert res.exit_code == 2 and "variables differ" in res.stderr
     res = run("shifts", a)
     assert res.exit_code == 2
+
+
+def test_examples_readme_shows_the_current_output():
+    # the expected output printed in examples/README.md is what the commands print now
+    readme = (EX / "README.md").read_text()
+    res = run("shifts", *FAMILY, "--levels", 3, "--digits", 10)
+    assert res.exit_code == 0 and res.stdout.strip() in readme
+    res = run("highenergy", *FAMILY, "--angles", "0.2,0.5,0.8", "--digits", 10)
+    assert res.exit_code == 0
+    for line in res.stdout.splitlines():
+        line = line.replace(str(EX.parent) + "/", "")       # the README runs from the repository root
+        assert line.rstrip() in readme, line
