@@ -154,11 +154,15 @@ def rational_text(r: Rat, xname: str = "x") -> str:
     if j:
         factors.append(f"(1-{xname})" if j == 1 else f"(1-{xname})^({j})" if j < 0 else f"(1-{xname})^{j}")
     pieces = []
+    several = sum(1 for c in n if c) > 1
     for p, c in enumerate(n):
         if not c:
             continue
         text, is_sum = _coef_text(c)
         mono = "" if p == 0 else (xname if p == 1 else f"{xname}^{p}")
+        if mono == xname and several and text in ("1", "-1"):
+            # a bare x in a sum is refused by the integrand reader (only 1-x is a binomial): write x^1
+            mono = f"{xname}^1"
         if not mono:
             pieces.append(f"({text})" if is_sum else text)
         elif text == "1":
