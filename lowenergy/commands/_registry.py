@@ -2,3 +2,4 @@
 
 One line per module, alphabetical.
 """
+from . import highenergy  # noqa: F401
