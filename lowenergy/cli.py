@@ -361,14 +361,34 @@ def check(
         raise typer.Exit(1)
 
 
+def _refuse_existing(path: str, input_file: str) -> None:
+    """--write never replaces a file (least of all the input) unless --force is given."""
+    import os
+
+    from .errors import InputError
+
+    if not os.path.lexists(path):
+        return
+    try:
+        same = os.path.samefile(path, input_file)
+    except OSError:
+        same = False
+    what = "it is the input file" if same else "the file exists"
+    raise InputError(
+        f"refusing to overwrite {path}: {what}",
+        hint="choose a new file name, or add --force to replace it",
+    )
+
+
 @app.command()
 @user_errors
 def fix(
     integrand_file: str = typer.Argument(..., metavar="INTEGRAND", help="integrand file with free parameters"),
     constraints_files: list[str] = typer.Argument(..., metavar="CONSTRAINTS...",
                                                   help="one or more constraint files (TOML), solved together"),
-    write: Optional[str] = typer.Option(None, "--write", help="write the fixed integrand file here"),
+    write: Optional[str] = typer.Option(None, "--write", help="write the fixed integrand file here (a new file)"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
+    force: bool = typer.Option(False, "--force", help="let --write replace an existing file (even the input)"),
 ) -> None:
     """Fix the free rational parameters of an integrand from exact Wilson-coefficient,
     pole and crossing constraints (one or several files)."""
@@ -379,6 +399,8 @@ def fix(
     from .errors import InputError
     from .integrand.reader import read_integrand
 
+    if write and not force:
+        _refuse_existing(write, integrand_file)
     sets = [read_constraints(f) for f in constraints_files]
     integrand = read_integrand(integrand_file)
     if not integrand.parameters:
