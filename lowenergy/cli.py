@@ -27,6 +27,10 @@ tables_app = typer.Typer(no_args_is_help=True, help="Build and inspect the cache
 app.add_typer(tables_app, name="tables")
 
 
+#: Exit code of ``check`` when no constraint failed but some depend on free parameters.
+EXIT_UNDECIDED = 3
+
+
 def user_errors(func):
     """Map LowEnergyError to one message and exit code 2."""
 
@@ -344,7 +348,11 @@ def check(
     digits: int = typer.Option(30, "--digits", help="digits of numeric comparisons"),
     verbose: bool = typer.Option(False, "--verbose", help="show left and right sides in full"),
 ) -> None:
-    """Check coefficients against a constraint set (exit 0 all pass, 1 any fails)."""
+    """Check coefficients against a constraint set.
+
+    Exit code 0: every constraint passed; 1: at least one failed; 3: undecided
+    (none failed, some depend on free parameters); 2: bad input.
+    """
     from .constraints import check as run_check
     from .constraints import read_constraints
 
@@ -357,8 +365,8 @@ def check(
         typer.echo(json.dumps(report.to_dict()))
     else:
         typer.echo(report.to_text(verbose=verbose))
-    if not report.ok:
-        raise typer.Exit(1)
+    if report.verdict != "passed":
+        raise typer.Exit(EXIT_UNDECIDED if report.verdict == "undecided" else 1)
 
 
 def _refuse_existing(path: str, input_file: str) -> None:

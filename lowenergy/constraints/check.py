@@ -614,6 +614,12 @@ class ConstraintResult:
         return self.status == PASS
 
     @property
+    def comparison(self) -> str:
+        """``"exact"`` when an exact residual was compared, else ``"numeric"``
+        (a numeric ``rhs_value``, or MZV tables too small for the relation)."""
+        return "exact" if self.residual is not None else "numeric"
+
+    @property
     def residual_is_zero(self) -> Optional[bool]:
         """Whether the exact residual vanishes (None if there is none)."""
         return None if self.residual is None else not self.residual
@@ -637,6 +643,7 @@ class ConstraintResult:
             "kind": self.kind,
             "status": self.status,
             "mode": self.mode,
+            "comparison": self.comparison,
             "relation": self.relation,
             "rhs": self.rhs_text,
             "lhs_exact": None if self.lhs is None else format_poly(self.lhs, self.parameters),
@@ -692,6 +699,17 @@ class CheckReport:
         return all(r.passed for r in self.results) and all(p[4] == PASS for p in self.pole_results)
 
     @property
+    def verdict(self) -> str:
+        """``"passed"`` (every constraint passed), ``"failed"`` (at least one
+        failed) or ``"undecided"`` (none failed, some depend on free parameters)."""
+        statuses = {r.status for r in self.results}
+        if FAIL in statuses:
+            return "failed"
+        if DEPENDS in statuses:
+            return "undecided"
+        return "passed"
+
+    @property
     def summary(self) -> Dict[str, int]:
         counts = {PASS: 0, FAIL: 0, DEPENDS: 0}
         for r in self.results:
@@ -719,7 +737,7 @@ class CheckReport:
             lines.append(f"warning: {w}")
         width = max([len(r.name) for r in self.results] + [4])
         for r in self.results:
-            lines.append(f"{r.status:<7} {r.name:<{width}}  {r.relation} {r.kind} {r.rhs_text}  [{r.mode}]")
+            lines.append(f"{r.status:<7} {r.name:<{width}}  {r.relation} {r.kind} {r.rhs_text}  [{r.comparison}]")
             if verbose or not r.passed:
                 lines.append(f"        lhs      = {r.lhs_text(digits)}")
                 if r.residual is not None:
@@ -735,8 +753,13 @@ class CheckReport:
         s = self.summary
         lines.append(
             f"summary: {s[PASS]} passed, {s[FAIL]} failed, {s[DEPENDS]} depend on free parameters "
-            f"({s['total']} constraints)"
+            f"({s['total']} constraints): {self.verdict}"
         )
+        if self.verdict == "undecided":
+            lines.append(
+                "undecided: no constraint failed, but the ones marked DEPENDS hold only for some values of "
+                f"{', '.join(self.parameters) or 'the parameters'} (fix them first, e.g. with `lowenergy fix`)"
+            )
         return "\n".join(lines)
 
     def to_dict(self, digits: int = 20) -> dict:
@@ -748,6 +771,7 @@ class CheckReport:
             "candidate": {"title": self.candidate_title, "order": self.candidate_order, "parameters": list(self.parameters)},
             "summary": self.summary,
             "ok": self.ok,
+            "verdict": self.verdict,
             "warnings": list(self.warnings),
             "results": [r.to_dict(digits) for r in self.results],
             "poles": [{"condition": label, "level": level, "order": order, "imposed": imposed, "status": status,
