@@ -434,6 +434,25 @@ def fix(
         raise typer.Exit(1)
 
 
+def _negativity_line(table) -> str:
+    """How many partial-wave coefficients are negative -- or that it is not decided."""
+    entries = table.entries()
+    negative = table.negatives()
+    undecided = [w for w in entries if w.sign is None]
+    if not undecided:
+        return f"{len(negative)} negative partial-wave coefficient(s)" + (" (unitarity violation)" if negative else "")
+    names = ", ".join(table.parameters)
+    text = (
+        f"{len(undecided)} of {len(entries)} partial-wave coefficients depend on the free parameters {names}: "
+        "their sign is not decided (give values with --at "
+        + ",".join(f"{p}=..." for p in table.parameters) + ")"
+    )
+    decided = len(entries) - len(undecided)
+    if decided:
+        text += f"; of the other {decided}, {len(negative)} negative" + (" (unitarity violation)" if negative else "")
+    return text
+
+
 @app.command()
 @user_errors
 def residues(
@@ -449,6 +468,9 @@ def residues(
         None, "--divide-by", help="poles in s of I/f(t) for a polynomial f in t, e.g. '-t'"
     ),
     digits: int = typer.Option(15, "--digits", help="digits of the numeric column"),
+    at: Optional[str] = typer.Option(
+        None, "--at", help="values of the free parameters, e.g. a1=1,a2=-1/2 (signs of --waves then decided)"
+    ),
 ) -> None:
     """Exact pole coefficients at the massive levels (and partial waves)."""
     from fractions import Fraction
@@ -469,6 +491,10 @@ def residues(
     if plot and not waves:
         raise InputError("--plot needs --waves")
     integrand = read_integrand(file)
+    if at:
+        from .constraints import substitute
+
+        integrand = substitute(integrand, _parse_point(at))
     table = find_residues(integrand, levels)
     if divide_by:
         from .tables.bases import parse_polynomial
@@ -496,8 +522,7 @@ def residues(
         df = result.to_dataframe(digits)
         typer.echo(df.to_string(index=False))
         if waves:
-            neg = [r for r in rows if str(r.get("negative", "")).lower() in ("yes", "true", "1")]
-            typer.echo(f"{len(neg)} negative partial-wave coefficient(s)" + (" (unitarity violation)" if neg else ""))
+            typer.echo(_negativity_line(result))
     for path in (csv, plot):
         if path:
             typer.echo(f"wrote {path}", err=True)
