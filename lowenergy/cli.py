@@ -45,6 +45,39 @@ def user_errors(func):
     return wrapper
 
 
+#: Largest expression read from standard input or a file (bytes).
+MAX_EXPRESSION_BYTES = 1_000_000
+
+
+def _expression_text(argument: str):
+    """The expression itself, or read from stdin (``-``) or a file (``@FILE``).
+
+    Returns ``(text, source)``; line breaks become blanks and ``#`` starts a
+    comment to the end of its line, so long expressions can be laid out in a file.
+    """
+    from .errors import InputError
+
+    if argument == "-":
+        raw = sys.stdin.read(MAX_EXPRESSION_BYTES + 1)
+        source = "<stdin>"
+    elif argument.startswith("@") and len(argument) > 1:
+        source = argument[1:]
+        try:
+            with open(source, encoding="utf-8") as fh:
+                raw = fh.read(MAX_EXPRESSION_BYTES + 1)
+        except (OSError, UnicodeDecodeError) as err:
+            reason = getattr(err, "strerror", None) or type(err).__name__
+            raise InputError(f"cannot read the expression file: {reason}", source=source) from None
+    else:
+        return argument, None
+    if len(raw) > MAX_EXPRESSION_BYTES:
+        raise InputError(f"the expression is longer than {MAX_EXPRESSION_BYTES} characters", source=source)
+    text = " ".join(line.split("#", 1)[0] for line in raw.splitlines()).strip()
+    if not text:
+        raise InputError("no expression given", source=source, hint="write e.g. -zeta(3) + zeta(2,1)")
+    return text, source
+
+
 def _check_digits(digits: int) -> None:
     from .errors import InputError
 
@@ -55,7 +88,9 @@ def _check_digits(digits: int) -> None:
 @app.command()
 @user_errors
 def reduce(
-    expression: str = typer.Argument(..., help="e.g. 'zeta(5,3) + zeta(3,5)' or 'pi^4/90'"),
+    expression: str = typer.Argument(
+        ..., help="e.g. 'zeta(5,3) + zeta(3,5)' or 'pi^4/90'; '-' reads standard input, '@FILE' a file"
+    ),
     basis: str = typer.Option("conventional", "--basis", help="'conventional' (ζ-monomials) or 'f' (f-alphabet)"),
     digits: int = typer.Option(30, "--digits", help="significant digits of the numeric value"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
@@ -76,7 +111,8 @@ def reduce(
     if regularize not in (None, "shuffle", "stuffle"):
         raise InputError(f"unknown regularization {regularize!r}", hint="use shuffle or stuffle")
     _check_digits(digits)
-    value = evaluate(expression, regularize=regularize)
+    expression, source = _expression_text(expression)
+    value = evaluate(expression, regularize=regularize, source=source)
     exact = value.to_text(pi=pi)
     f_text = f_to_text(value.f_alphabet())
     numeric = mpmath.nstr(value.numeric(digits), digits, min_fixed=-5, max_fixed=5)
