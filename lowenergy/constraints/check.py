@@ -388,6 +388,10 @@ def _evaluate(
             y = ring.zeta(tuple(int(a.value) for a in node.args))  # type: ignore[attr-defined]
         elif node.name == "G":
             y = ring.g(tuple(int(a.value) for a in node.letters or ()))  # type: ignore[attr-defined]
+        elif node.name == "sv":
+            from ..zeta.expression import sv_of_tree
+
+            y = ring.coefficient(sv_of_tree(node, _fail, store=getattr(ring, "store", None)))
         else:  # pragma: no cover - rejected by the static checks
             raise _fail(node, f"unknown function '{node.name}'")
         return {} if ring.is_zero(y) else {(zero, 0): y}
