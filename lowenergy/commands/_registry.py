@@ -2,3 +2,5 @@
 
 One line per module, alphabetical.
 """
+
+from . import dispersion  # noqa: F401
