@@ -343,7 +343,7 @@ def _load_candidate(source: str, constraints):
     from .tables import read_csv
 
     if Path(source).suffix.lower() == ".csv":
-        return read_csv(source)
+        return read_csv(source, numeric=True)
     from .integrand.reader import read_integrand
 
     integrand = read_integrand(source)

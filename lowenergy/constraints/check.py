@@ -281,6 +281,8 @@ class _NumericRing:
         return total
 
     def coefficient(self, x: MZV):
+        if isinstance(x, mpmath.mpf):  # a numeric-only candidate table
+            return abs(x) if self.absolute else x
         if self.absolute:
             x = MZV({m: abs(q) for m, q in x.as_dict().items()})
         if x.is_rational():
@@ -874,11 +876,15 @@ def _check_one(c: Constraint, values: CoefficientValues, params: Tuple[str, ...]
     mode = "exact"
     lhs = rhs = residual = None
     tolerance = None
-    try:
-        lhs, rhs = exact_sides(c, values, store)
-    except TableError as err:
+    table_digits = values.expansion.meta.get("numeric_digits") if values.expansion.meta.get("numeric_only") else None
+    if table_digits is not None:
         mode = "numeric"
-        warnings.append(f"compared numerically: {err.message}")
+    else:
+        try:
+            lhs, rhs = exact_sides(c, values, store)
+        except TableError as err:
+            mode = "numeric"
+            warnings.append(f"compared numerically: {err.message}")
     for ref in c.refs:
         if ref.name in values.warnings and values.warnings[ref.name] not in warnings:
             warnings.append(values.warnings[ref.name])
@@ -923,6 +929,9 @@ def _check_one(c: Constraint, values: CoefficientValues, params: Tuple[str, ...]
             else:
                 # numeric mode: anything above the rounding noise of the terms counts
                 noise = scale * mpmath.mpf(10) ** (5 - digits)
+                if table_digits is not None:
+                    # the candidate's cells carry table_digits significant digits each
+                    noise = max(noise, scale * mpmath.mpf(10) ** (2 - table_digits))
                 depends = any(any(pe) and abs(v) > noise for pe, v in res_num.items())
             if c.rhs_value is not None:
                 tolerance = _NumericRing.mpf(c.tolerance())
@@ -1008,6 +1017,11 @@ def check(
     if cset is not None and (cset.poles or cset.crossing is not None):
         pole_results = _check_poles(cset, candidate, poles, store)
     warnings = []
+    if candidate.meta.get("numeric_only"):
+        warnings.append(
+            f"numeric-only candidate table ({candidate.meta.get('numeric_digits')} significant digits): "
+            "every constraint is compared numerically"
+        )
     if cset is not None and cset.template:
         warnings.append("this constraint set is a TEMPLATE with invented numbers; do not read physics into it")
     return CheckReport(
