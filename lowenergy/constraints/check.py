@@ -706,12 +706,13 @@ class CheckReport:
 
     @property
     def verdict(self) -> str:
-        """``"passed"`` (every constraint passed), ``"failed"`` (at least one
-        failed) or ``"undecided"`` (none failed, some depend on free parameters)."""
-        statuses = {r.status for r in self.results}
+        """``"passed"`` (every constraint and pole condition passed), ``"failed"``
+        (at least one failed) or ``"undecided"`` (none failed, some depend on
+        free parameters)."""
+        statuses = {r.status for r in self.results} | {p[4] for p in self.pole_results}
         if FAIL in statuses:
             return "failed"
-        if DEPENDS in statuses:
+        if statuses - {PASS}:
             return "undecided"
         return "passed"
 
