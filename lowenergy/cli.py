@@ -27,6 +27,10 @@ tables_app = typer.Typer(no_args_is_help=True, help="Build and inspect the cache
 app.add_typer(tables_app, name="tables")
 
 
+#: Exit code of ``check`` when no constraint failed but some depend on free parameters.
+EXIT_UNDECIDED = 3
+
+
 def user_errors(func):
     """Map LowEnergyError to one message and exit code 2."""
 
@@ -41,6 +45,39 @@ def user_errors(func):
     return wrapper
 
 
+#: Largest expression read from standard input or a file (bytes).
+MAX_EXPRESSION_BYTES = 1_000_000
+
+
+def _expression_text(argument: str):
+    """The expression itself, or read from stdin (``-``) or a file (``@FILE``).
+
+    Returns ``(text, source)``; line breaks become blanks and ``#`` starts a
+    comment to the end of its line, so long expressions can be laid out in a file.
+    """
+    from .errors import InputError
+
+    if argument == "-":
+        raw = sys.stdin.read(MAX_EXPRESSION_BYTES + 1)
+        source = "<stdin>"
+    elif argument.startswith("@") and len(argument) > 1:
+        source = argument[1:]
+        try:
+            with open(source, encoding="utf-8") as fh:
+                raw = fh.read(MAX_EXPRESSION_BYTES + 1)
+        except (OSError, UnicodeDecodeError) as err:
+            reason = getattr(err, "strerror", None) or type(err).__name__
+            raise InputError(f"cannot read the expression file: {reason}", source=source) from None
+    else:
+        return argument, None
+    if len(raw) > MAX_EXPRESSION_BYTES:
+        raise InputError(f"the expression is longer than {MAX_EXPRESSION_BYTES} characters", source=source)
+    text = " ".join(line.split("#", 1)[0] for line in raw.splitlines()).strip()
+    if not text:
+        raise InputError("no expression given", source=source, hint="write e.g. -zeta(3) + zeta(2,1)")
+    return text, source
+
+
 def _check_digits(digits: int) -> None:
     from .errors import InputError
 
@@ -51,7 +88,9 @@ def _check_digits(digits: int) -> None:
 @app.command()
 @user_errors
 def reduce(
-    expression: str = typer.Argument(..., help="e.g. 'zeta(5,3) + zeta(3,5)' or 'pi^4/90'"),
+    expression: str = typer.Argument(
+        ..., help="e.g. 'zeta(5,3) + zeta(3,5)' or 'pi^4/90'; '-' reads standard input, '@FILE' a file"
+    ),
     basis: str = typer.Option("conventional", "--basis", help="'conventional' (ζ-monomials) or 'f' (f-alphabet)"),
     digits: int = typer.Option(30, "--digits", help="significant digits of the numeric value"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
@@ -72,7 +111,8 @@ def reduce(
     if regularize not in (None, "shuffle", "stuffle"):
         raise InputError(f"unknown regularization {regularize!r}", hint="use shuffle or stuffle")
     _check_digits(digits)
-    value = evaluate(expression, regularize=regularize)
+    expression, source = _expression_text(expression)
+    value = evaluate(expression, regularize=regularize, source=source)
     exact = value.to_text(pi=pi)
     f_text = f_to_text(value.f_alphabet())
     numeric = mpmath.nstr(value.numeric(digits), digits, min_fixed=-5, max_fixed=5)
@@ -356,7 +396,7 @@ def _load_candidate(source: str, constraints):
     from .tables import read_csv
 
     if Path(source).suffix.lower() == ".csv":
-        return read_csv(source)
+        return read_csv(source, numeric=True)
     from .integrand.reader import read_integrand
 
     integrand = read_integrand(source)
@@ -397,7 +437,11 @@ def check(
     digits: int = typer.Option(30, "--digits", help="digits of numeric comparisons"),
     verbose: bool = typer.Option(False, "--verbose", help="show left and right sides in full"),
 ) -> None:
-    """Check coefficients against a constraint set (exit 0 all pass, 1 any fails)."""
+    """Check coefficients against a constraint set.
+
+    Exit code 0: every constraint passed; 1: at least one failed; 3: undecided
+    (none failed, some depend on free parameters); 2: bad input.
+    """
     from .constraints import check as run_check
     from .constraints import read_constraints
 
@@ -410,8 +454,27 @@ def check(
         typer.echo(json.dumps(report.to_dict()))
     else:
         typer.echo(report.to_text(verbose=verbose))
-    if not report.ok:
-        raise typer.Exit(1)
+    if report.verdict != "passed":
+        raise typer.Exit(EXIT_UNDECIDED if report.verdict == "undecided" else 1)
+
+
+def _refuse_existing(path: str, input_file: str) -> None:
+    """--write never replaces a file (least of all the input) unless --force is given."""
+    import os
+
+    from .errors import InputError
+
+    if not os.path.lexists(path):
+        return
+    try:
+        same = os.path.samefile(path, input_file)
+    except OSError:
+        same = False
+    what = "it is the input file" if same else "the file exists"
+    raise InputError(
+        f"refusing to overwrite {path}: {what}",
+        hint="choose a new file name, or add --force to replace it",
+    )
 
 
 @app.command()
@@ -420,8 +483,9 @@ def fix(
     integrand_file: str = typer.Argument(..., metavar="INTEGRAND", help="integrand file with free parameters"),
     constraints_files: list[str] = typer.Argument(..., metavar="CONSTRAINTS...",
                                                   help="one or more constraint files (TOML), solved together"),
-    write: Optional[str] = typer.Option(None, "--write", help="write the fixed integrand file here"),
+    write: Optional[str] = typer.Option(None, "--write", help="write the fixed integrand file here (a new file)"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
+    force: bool = typer.Option(False, "--force", help="let --write replace an existing file (even the input)"),
 ) -> None:
     """Fix the free rational parameters of an integrand from exact Wilson-coefficient,
     pole and crossing constraints (one or several files)."""
@@ -432,6 +496,8 @@ def fix(
     from .errors import InputError
     from .integrand.reader import read_integrand
 
+    if write and not force:
+        _refuse_existing(write, integrand_file)
     sets = [read_constraints(f) for f in constraints_files]
     integrand = read_integrand(integrand_file)
     if not integrand.parameters:
@@ -457,6 +523,25 @@ def fix(
         raise typer.Exit(1)
 
 
+def _negativity_line(table) -> str:
+    """How many partial-wave coefficients are negative -- or that it is not decided."""
+    entries = table.entries()
+    negative = table.negatives()
+    undecided = [w for w in entries if w.sign is None]
+    if not undecided:
+        return f"{len(negative)} negative partial-wave coefficient(s)" + (" (unitarity violation)" if negative else "")
+    names = ", ".join(table.parameters)
+    text = (
+        f"{len(undecided)} of {len(entries)} partial-wave coefficients depend on the free parameters {names}: "
+        "their sign is not decided (give values with --at "
+        + ",".join(f"{p}=..." for p in table.parameters) + ")"
+    )
+    decided = len(entries) - len(undecided)
+    if decided:
+        text += f"; of the other {decided}, {len(negative)} negative" + (" (unitarity violation)" if negative else "")
+    return text
+
+
 @app.command()
 @user_errors
 def residues(
@@ -472,6 +557,9 @@ def residues(
         None, "--divide-by", help="poles in s of I/f(t) for a polynomial f in t, e.g. '-t'"
     ),
     digits: int = typer.Option(15, "--digits", help="digits of the numeric column"),
+    at: Optional[str] = typer.Option(
+        None, "--at", help="values of the free parameters, e.g. a1=1,a2=-1/2 (signs of --waves then decided)"
+    ),
 ) -> None:
     """Exact pole coefficients at the massive levels (and partial waves)."""
     from fractions import Fraction
@@ -492,6 +580,10 @@ def residues(
     if plot and not waves:
         raise InputError("--plot needs --waves")
     integrand = read_integrand(file)
+    if at:
+        from .constraints import substitute
+
+        integrand = substitute(integrand, _parse_point(at))
     table = find_residues(integrand, levels)
     if divide_by:
         from .tables.bases import parse_polynomial
@@ -519,8 +611,7 @@ def residues(
         df = result.to_dataframe(digits)
         typer.echo(df.to_string(index=False))
         if waves:
-            neg = [r for r in rows if str(r.get("negative", "")).lower() in ("yes", "true", "1")]
-            typer.echo(f"{len(neg)} negative partial-wave coefficient(s)" + (" (unitarity violation)" if neg else ""))
+            typer.echo(_negativity_line(result))
     for path in (csv, plot):
         if path:
             typer.echo(f"wrote {path}", err=True)
@@ -546,9 +637,14 @@ def demo() -> None:
         typer.echo("building MZV tables up to weight 12 (once; cached) ...")
         build_tables(12, store)
     typer.echo("\n1. Canonical MZV reductions (first index on the largest summation variable):")
-    for text in ["zeta(2,1)", "zeta(5,3)", "zeta(3,1,3,1)", "pi^8", "zeta(2,2,3,5) - zeta(3,9)"]:
+    # each line must say something: an input that is already canonical would
+    # print as "x = x", which is no identity, so it is labelled instead
+    for text in ["zeta(2,1)", "zeta(5,3)", "zeta(3,1,3,1)", "pi^8", "zeta(5,7)"]:
         value = evaluate(text)
-        typer.echo(f"   {text:28s} = {value}")
+        if value.to_text().replace(" ", "") == text.replace(" ", ""):
+            typer.echo(f"   {text:28s}   (already canonical: a basis element)")
+        else:
+            typer.echo(f"   {text:28s} = {value}")
         typer.echo(f"   {'':28s}   f-alphabet: {f_to_text(value.f_alphabet())}")
     typer.echo("\n2. The open-superstring factor x^(-s-1)(1-x)^(-t) expanded to order 4:")
     integrand = integrand_from_text(

@@ -2,4 +2,6 @@
 
 One line per module, alphabetical.
 """
+
+from . import dispersion  # noqa: F401
 from . import highenergy  # noqa: F401

@@ -281,6 +281,8 @@ class _NumericRing:
         return total
 
     def coefficient(self, x: MZV):
+        if isinstance(x, mpmath.mpf):  # a numeric-only candidate table
+            return abs(x) if self.absolute else x
         if self.absolute:
             x = MZV({m: abs(q) for m, q in x.as_dict().items()})
         if x.is_rational():
@@ -388,6 +390,10 @@ def _evaluate(
             y = ring.zeta(tuple(int(a.value) for a in node.args))  # type: ignore[attr-defined]
         elif node.name == "G":
             y = ring.g(tuple(int(a.value) for a in node.letters or ()))  # type: ignore[attr-defined]
+        elif node.name == "sv":
+            from ..zeta.expression import sv_of_tree
+
+            y = ring.coefficient(sv_of_tree(node, _fail, store=getattr(ring, "store", None)))
         else:  # pragma: no cover - rejected by the static checks
             raise _fail(node, f"unknown function '{node.name}'")
         return {} if ring.is_zero(y) else {(zero, 0): y}
@@ -614,6 +620,12 @@ class ConstraintResult:
         return self.status == PASS
 
     @property
+    def comparison(self) -> str:
+        """``"exact"`` when an exact residual was compared, else ``"numeric"``
+        (a numeric ``rhs_value``, or MZV tables too small for the relation)."""
+        return "exact" if self.residual is not None else "numeric"
+
+    @property
     def residual_is_zero(self) -> Optional[bool]:
         """Whether the exact residual vanishes (None if there is none)."""
         return None if self.residual is None else not self.residual
@@ -637,6 +649,7 @@ class ConstraintResult:
             "kind": self.kind,
             "status": self.status,
             "mode": self.mode,
+            "comparison": self.comparison,
             "relation": self.relation,
             "rhs": self.rhs_text,
             "lhs_exact": None if self.lhs is None else format_poly(self.lhs, self.parameters),
@@ -692,6 +705,18 @@ class CheckReport:
         return all(r.passed for r in self.results) and all(p[4] == PASS for p in self.pole_results)
 
     @property
+    def verdict(self) -> str:
+        """``"passed"`` (every constraint and pole condition passed), ``"failed"``
+        (at least one failed) or ``"undecided"`` (none failed, some depend on
+        free parameters)."""
+        statuses = {r.status for r in self.results} | {p[4] for p in self.pole_results}
+        if FAIL in statuses:
+            return "failed"
+        if statuses - {PASS}:
+            return "undecided"
+        return "passed"
+
+    @property
     def summary(self) -> Dict[str, int]:
         counts = {PASS: 0, FAIL: 0, DEPENDS: 0}
         for r in self.results:
@@ -719,7 +744,7 @@ class CheckReport:
             lines.append(f"warning: {w}")
         width = max([len(r.name) for r in self.results] + [4])
         for r in self.results:
-            lines.append(f"{r.status:<7} {r.name:<{width}}  {r.relation} {r.kind} {r.rhs_text}  [{r.mode}]")
+            lines.append(f"{r.status:<7} {r.name:<{width}}  {r.relation} {r.kind} {r.rhs_text}  [{r.comparison}]")
             if verbose or not r.passed:
                 lines.append(f"        lhs      = {r.lhs_text(digits)}")
                 if r.residual is not None:
@@ -735,8 +760,13 @@ class CheckReport:
         s = self.summary
         lines.append(
             f"summary: {s[PASS]} passed, {s[FAIL]} failed, {s[DEPENDS]} depend on free parameters "
-            f"({s['total']} constraints)"
+            f"({s['total']} constraints): {self.verdict}"
         )
+        if self.verdict == "undecided":
+            lines.append(
+                "undecided: no constraint failed, but the ones marked DEPENDS hold only for some values of "
+                f"{', '.join(self.parameters) or 'the parameters'} (fix them first, e.g. with `lowenergy fix`)"
+            )
         return "\n".join(lines)
 
     def to_dict(self, digits: int = 20) -> dict:
@@ -748,6 +778,7 @@ class CheckReport:
             "candidate": {"title": self.candidate_title, "order": self.candidate_order, "parameters": list(self.parameters)},
             "summary": self.summary,
             "ok": self.ok,
+            "verdict": self.verdict,
             "warnings": list(self.warnings),
             "results": [r.to_dict(digits) for r in self.results],
             "poles": [{"condition": label, "level": level, "order": order, "imposed": imposed, "status": status,
@@ -846,11 +877,15 @@ def _check_one(c: Constraint, values: CoefficientValues, params: Tuple[str, ...]
     mode = "exact"
     lhs = rhs = residual = None
     tolerance = None
-    try:
-        lhs, rhs = exact_sides(c, values, store)
-    except TableError as err:
+    table_digits = values.expansion.meta.get("numeric_digits") if values.expansion.meta.get("numeric_only") else None
+    if table_digits is not None:
         mode = "numeric"
-        warnings.append(f"compared numerically: {err.message}")
+    else:
+        try:
+            lhs, rhs = exact_sides(c, values, store)
+        except TableError as err:
+            mode = "numeric"
+            warnings.append(f"compared numerically: {err.message}")
     for ref in c.refs:
         if ref.name in values.warnings and values.warnings[ref.name] not in warnings:
             warnings.append(values.warnings[ref.name])
@@ -895,6 +930,9 @@ def _check_one(c: Constraint, values: CoefficientValues, params: Tuple[str, ...]
             else:
                 # numeric mode: anything above the rounding noise of the terms counts
                 noise = scale * mpmath.mpf(10) ** (5 - digits)
+                if table_digits is not None:
+                    # the candidate's cells carry table_digits significant digits each
+                    noise = max(noise, scale * mpmath.mpf(10) ** (2 - table_digits))
                 depends = any(any(pe) and abs(v) > noise for pe, v in res_num.items())
             if c.rhs_value is not None:
                 tolerance = _NumericRing.mpf(c.tolerance())
@@ -980,6 +1018,11 @@ def check(
     if cset is not None and (cset.poles or cset.crossing is not None):
         pole_results = _check_poles(cset, candidate, poles, store)
     warnings = []
+    if candidate.meta.get("numeric_only"):
+        warnings.append(
+            f"numeric-only candidate table ({candidate.meta.get('numeric_digits')} significant digits): "
+            "every constraint is compared numerically"
+        )
     if cset is not None and cset.template:
         warnings.append("this constraint set is a TEMPLATE with invented numbers; do not read physics into it")
     return CheckReport(

@@ -54,9 +54,11 @@ returns a new TOML text in which
 * a line ``Parameters fixed by lowenergy: a1 = 1/2, ...`` is appended to
   ``notes``.
 
-The document is written anew from the data (keys in their original order,
-strings re-escaped, the integrand on one line); comments and layout of the
-original are not kept.  The result is read back with the integrand reader
+The document is edited in place (tomlkit, :mod:`lowenergy.constraints.rewrite`):
+comments, key order, blank lines and a multi-line integrand string stay as
+they were, and the substituted values are written tidily (``a1*s*t`` with
+``a1 = 1`` becomes ``s*t``; a term whose parameter is 0 is dropped).  The
+result is read back with the integrand reader
 and its terms are compared exactly with :func:`substitute` applied to the
 original integrand before it is returned.
 
@@ -87,14 +89,12 @@ Examples
 from __future__ import annotations
 
 import dataclasses
-import re
-import sys
 from pathlib import Path
 from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
 
-from ..errors import InputError, LowEnergyError, ParseError
+from ..errors import InputError, LowEnergyError
 from ..expansion.result import Expansion
 from ..integrand.model import Integrand, poly_mul
 from ..zeta.element import MZV
@@ -104,12 +104,8 @@ from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, check, check_
 from .linalg import Echelon
 from .linalg import consistent as linalg_consistent
 from .model import Constraint, ConstraintSet, pole_levels_needed
+from .rewrite import rewrite_toml
 from .poles import Condition, crossing_contact_conditions, crossing_pole_conditions, pole_conditions
-
-if sys.version_info >= (3, 11):  # pragma: no cover - depends on the interpreter
-    import tomllib
-else:  # pragma: no cover
-    import tomli as tomllib
 
 __all__ = ["fix", "FixReport", "substitute", "write_fixed_integrand", "UNIQUE", "UNDERDETERMINED", "INCONSISTENT"]
 
@@ -824,92 +820,6 @@ def substitute(target: Union[Expansion, Integrand], solution) -> Union[Expansion
 # writing the fixed integrand file
 # ==========================================================================
 
-_DIGITS = frozenset("0123456789")
-_IDENT_FIRST = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz_")
-_IDENT_REST = _IDENT_FIRST | frozenset("0123456789")
-
-
-def _replace_names(text: str, replacements: Dict[str, str]) -> str:
-    """Replace identifier tokens (not call names) of an expression."""
-    out: List[str] = []
-    n = len(text)
-    i = 0
-    while i < n:
-        ch = text[i]
-        if ch in _DIGITS:
-            j = i
-            while j < n and (text[j] in _DIGITS or text[j] == "."):
-                j += 1
-            out.append(text[i:j])
-            i = j
-            continue
-        if ch in _IDENT_FIRST:
-            j = i
-            while j < n and text[j] in _IDENT_REST:
-                j += 1
-            name = text[i:j]
-            k = j
-            while k < n and text[k] in " \t\r\n":
-                k += 1
-            is_call = k < n and text[k] == "("
-            out.append(replacements[name] if name in replacements and not is_call else name)
-            i = j
-            continue
-        out.append(ch)
-        i += 1
-    return "".join(out)
-
-
-_BARE = re.compile(r"[A-Za-z0-9_-]+\Z")
-
-
-def _toml_string(s: str) -> str:
-    out = ['"']
-    for ch in s:
-        if ch == '"':
-            out.append('\\"')
-        elif ch == "\\":
-            out.append("\\\\")
-        elif ch == "\n":
-            out.append("\\n")
-        elif ch == "\t":
-            out.append("\\t")
-        elif ch == "\r":
-            out.append("\\r")
-        elif ord(ch) < 0x20 or ord(ch) == 0x7F:
-            out.append(f"\\u{ord(ch):04X}")
-        else:
-            out.append(ch)
-    out.append('"')
-    return "".join(out)
-
-
-def _toml_key(key: str) -> str:
-    return key if _BARE.match(key) else _toml_string(key)
-
-
-def _toml_value(value) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, int):
-        return str(value)
-    if isinstance(value, float):
-        if value != value:
-            return "nan"
-        if value in (float("inf"), float("-inf")):
-            return "inf" if value > 0 else "-inf"
-        return repr(value)
-    if isinstance(value, str):
-        return _toml_string(value)
-    if isinstance(value, list):
-        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
-    if isinstance(value, dict):
-        return "{" + ", ".join(f"{_toml_key(k)} = {_toml_value(v)}" for k, v in value.items()) + "}"
-    if hasattr(value, "isoformat"):
-        return value.isoformat()
-    raise InputError(f"cannot write a TOML value of type {type(value).__name__}")  # pragma: no cover
-
-
 def _term_sums(itg: Integrand) -> Dict[tuple, Dict[tuple, MZV]]:
     out: Dict[tuple, Dict[tuple, MZV]] = {}
     for term in itg.terms:
@@ -940,20 +850,10 @@ def write_fixed_integrand(source_toml_text, solution, *, source: str = "<integra
     text = source_toml_text.decode("utf-8-sig") if isinstance(source_toml_text, (bytes, bytearray)) else source_toml_text
     if text.startswith("\ufeff"):
         text = text[1:]
-    try:
-        data = tomllib.loads(text)
-    except (tomllib.TOMLDecodeError, RecursionError):  # pragma: no cover - the reader accepted it
-        raise ParseError("malformed TOML", source=source) from None
-    replacements = {name: f"({_affine_text(aff)})" for name, aff in mapping.items()}
-    expression = data["integrand"].replace("\r\n", " ").replace("\n", " ").replace("\r", " ")
-    data["integrand"] = _replace_names(expression, replacements)
-    if "parameters" in data:
-        data["parameters"] = [p for p in data["parameters"] if p not in mapping]
+    line = ""
     if mapping:
         line = "Parameters fixed by lowenergy: " + ", ".join(f"{k} = {_affine_text(v)}" for k, v in mapping.items())
-        notes = data.get("notes", "")
-        data["notes"] = f"{notes}\n{line}" if notes else line
-    new_text = "".join(f"{_toml_key(k)} = {_toml_value(v)}\n" for k, v in data.items())
+    new_text = rewrite_toml(text, mapping, line)
     try:
         rewritten = integrand_from_text(new_text, source, store=store)
     except LowEnergyError as err:  # pragma: no cover - would be a bug in the textual substitution

@@ -901,9 +901,16 @@ def _validate_call(node: Call, refs, fail) -> None:
         if len(node.letters) > MAX_MZV_WEIGHT:
             raise fail(node, "G word too long", f"words up to length {MAX_MZV_WEIGHT} are accepted")
         return
+    if name == "sv":
+        if node.letters is not None or len(node.args) != 1:
+            raise fail(node, "sv takes one MZV expression", "write sv(zeta(5,3))")
+        for k in _subtree_nodes(node.args[0]):
+            if isinstance(k, Sym) and k.name != "pi":
+                raise fail(k, "sv applies to MZV constants only", "write e.g. sv(zeta(5,3))*c[2,0]")
+        return
     if name in FAMILIES:
         raise fail(node, f"unknown function '{name}'", f"coefficients use square brackets: {name}[i,j]")
-    raise fail(node, f"unknown function '{_short(name, 30)}'", "known here: zeta(...), G(...; 1)")
+    raise fail(node, f"unknown function '{_short(name, 30)}'", "known here: zeta(...), G(...; 1), sv(...)")
 
 
 # --------------------------------------------------------------------------

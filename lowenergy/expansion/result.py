@@ -20,13 +20,14 @@ from dataclasses import dataclass, field
 from typing import Dict, Iterator, Tuple
 
 from ..zeta.element import MZV
+from ..zeta.format import join_terms
 
 __all__ = ["Expansion", "ParamPoly", "u_pole_name"]
 
 ParamPoly = Dict[Tuple[int, ...], MZV]
 
 
-@dataclass
+@dataclass(repr=False)
 class Expansion:
     """Exact low-energy expansion of one integrand.
 
@@ -59,9 +60,22 @@ class Expansion:
     u_poles: Dict[Tuple[int, int], ParamPoly] = field(default_factory=dict)
     domain: str = "interval"
 
-    def coefficient(self, i: int, j: int) -> ParamPoly:
-        """Coefficient of s^i t^j ({} if zero)."""
-        return dict(self.coefficients.get((i, j), {}))
+    def coefficient(self, i: int, j: int):
+        """Coefficient of s^i t^j.
+
+        Without free parameters an :class:`~lowenergy.zeta.element.MZV`
+        (zero if absent).  With free parameters a dict
+        ``{parameter exponents: MZV}`` (``{}`` if zero): the exponents follow
+        :attr:`parameters`, e.g. ``(2, 0)`` is ``a1^2`` for ``("a1", "a2")``.
+        :meth:`param_coefficient` always returns the dict.
+        """
+        if self.parameters:
+            return self.param_coefficient(i, j)
+        return self.coefficients.get((i, j), {}).get((), MZV())
+
+    def param_coefficient(self, i: int, j: int) -> ParamPoly:
+        """Coefficient of s^i t^j as ``{parameter exponents: MZV}`` ({} if zero), keys sorted."""
+        return dict(sorted(self.coefficients.get((i, j), {}).items()))
 
     def value(self, i: int, j: int) -> MZV:
         """Coefficient of s^i t^j when there are no free parameters."""
@@ -78,6 +92,91 @@ class Expansion:
         keys = sorted(self.coefficients, key=lambda k: (not self.is_pole(*k), k[0] + k[1], -k[0]))
         return iter(keys)
 
+    # -- display -------------------------------------------------------------
+    def series_text(self, style: str = "plain", limit: int | None = None) -> str:
+        """The series as one sum, e.g. ``-s^-1 - t^-1 + zeta(2) + ...``.
+
+        ``style="latex"`` gives math-mode LaTeX.  With ``limit`` only the first
+        ``limit`` monomials are written, followed by ``+ ...``.
+        """
+        parts = []
+        keys = list(self.monomials())
+        shown = keys if limit is None else keys[:limit]
+        for i, j in shown:
+            parts.append(_term(self.coefficients[(i, j)], i, j, self.variables, self.parameters, style))
+        text = join_terms(parts)
+        if len(shown) < len(keys):
+            text += " + \\ldots" if style == "latex" else " + ..."
+        return text
+
+    def __repr__(self) -> str:
+        n = len(self.coefficients)
+        title = f" {self.title!r}" if self.title else ""
+        params = f", parameters {', '.join(self.parameters)}" if self.parameters else ""
+        head = (
+            f"<Expansion{title} in {', '.join(self.variables)} to order {self.order}{params}: "
+            f"{n} non-zero coefficient{'s' if n != 1 else ''}>"
+        )
+        return head + "\n" + self.series_text(limit=_REPR_TERMS)
+
+    def _repr_latex_(self) -> str:
+        """Jupyter display: the series as one formula (first 200 terms)."""
+        return "$" + self.series_text(style="latex", limit=200) + "$"
+
+
+_REPR_TERMS = 12
+
+
+def _power(name: str, e: int, style: str) -> str:
+    if e == 1:
+        return name
+    return f"{name}^{{{e}}}" if style == "latex" else f"{name}^{e}"
+
+
+def _monomial(powers, names, style: str) -> str:
+    parts = [_power(v, e, style) for v, e in zip(names, powers) if e]
+    return (" " if style == "latex" else "*").join(parts)
+
+
+def _term(pp: ParamPoly, i: int, j: int, variables, parameters, style: str) -> str:
+    """One signed term ``(coefficient) * s^i t^j`` of the series."""
+    pieces = []
+    for pe in sorted(pp, key=lambda e: (-sum(e), tuple(-x for x in e))):
+        value = pp[pe]
+        body = _monomial(pe, parameters, style)
+        items = list(value.terms())
+        if len(items) == 1:
+            mono_text = value.to_text(style=style)
+            # a single term c*zeta...: multiply its coefficient into the parameter monomial
+            if body:
+                mono_text = _times(mono_text, body, style)
+            pieces.append(mono_text)
+        else:
+            inner = value.to_text(style=style)
+            if body:
+                pieces.append(_times(_paren(inner, style), body, style))
+            else:
+                pieces.append(inner)
+    inner = join_terms(pieces)
+    mono = _monomial((i, j), variables, style)
+    if not mono:
+        return inner
+    if len(pieces) == 1 and " + " not in inner and " - " not in inner[1:]:
+        return _times(inner, mono, style)
+    return _times(_paren(inner, style), mono, style)
+
+
+def _paren(text: str, style: str) -> str:
+    return f"\\left({text}\\right)" if style == "latex" else f"({text})"
+
+
+def _times(coef: str, body: str, style: str) -> str:
+    """``coef * body`` with ``1``/``-1`` written as signs."""
+    if coef == "1":
+        return body
+    if coef == "-1":
+        return "-" + body
+    return f"{coef}\\, {body}" if style == "latex" else f"{coef}*{body}"
 
 def u_pole_name(i: int, k: int) -> str:
     """``c[i,0,k]``: the coefficient of ``S^i U^k`` (``U = -S-T``, ``k < 0``).

@@ -50,6 +50,7 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass, field
+from fractions import Fraction
 from typing import Dict, Mapping, Tuple
 
 import mpmath
@@ -68,7 +69,7 @@ from ..integrand.gnumeric import (
 from ..integrand.model import Integrand
 from .result import Expansion
 
-__all__ = ["VerifyReport", "IntegralValue", "verify", "integral_value", "series_value"]
+__all__ = ["VerifyReport", "IntegralValue", "verify", "integral_value", "series_value", "convergence_radii"]
 
 Word = Tuple[int, ...]
 
@@ -121,7 +122,20 @@ class VerifyReport:
     digits_agreement:
         ``-log10(|difference| / |quadrature|)`` (capped at ``digits``).
     consistent:
-        ``|difference| ≤ safety · truncation_estimate + quadrature_error``.
+        ``|difference| ≤ safety · truncation_estimate + quadrature_error``,
+        and the point well inside the convergence region (see ``status``).
+    status:
+        ``"consistent"``, ``"inconsistent"``, or ``"inconclusive"``: the point
+        lies beyond the radius of convergence (``radius_ratio ≥ 1``), or near
+        it (``radius_ratio ≥ NEAR_RADIUS``) with fewer than
+        ``MIN_DIGITS_NEAR_RADIUS`` digits of agreement, where a large
+        truncation estimate would excuse almost any difference.
+    radius_ratio:
+        ``max |v| / R_v`` over the expansion variables, ``R_v`` the distance
+        from 0 to the nearest possible massive pole in ``v``
+        (:func:`convergence_radii`).
+    warnings:
+        Sentences for people (the convergence region).
     """
 
     point: dict
@@ -136,6 +150,9 @@ class VerifyReport:
     digits: int
     safety: float
     details: dict = field(default_factory=dict)
+    status: str = "consistent"
+    radius_ratio: float = 0.0
+    warnings: Tuple[str, ...] = ()
 
     def summary(self) -> str:
         """A few lines for people."""
@@ -148,11 +165,45 @@ class VerifyReport:
             f"difference       {mpmath.nstr(self.difference, n)}",
             f"truncation est.  {mpmath.nstr(self.truncation_estimate, n)}  (safety factor {self.safety:g})",
             f"agreement        {self.digits_agreement:.1f} digits",
-            f"consistent       {'yes' if self.consistent else 'NO'}",
-        ])
+            f"consistent       {_STATUS_TEXT[self.status]}",
+        ] + [f"warning: {w}" for w in self.warnings])
 
     def __str__(self) -> str:
         return self.summary()
+
+
+_STATUS_TEXT = {"consistent": "yes", "inconsistent": "NO", "inconclusive": "INCONCLUSIVE (see the warning)"}
+#: ``radius_ratio`` from which a warning is given (terms shrink only like ratio^n).
+NEAR_RADIUS = 0.5
+#: Digits of agreement needed near the radius to call the comparison consistent.
+MIN_DIGITS_NEAR_RADIUS = 3.0
+
+
+def convergence_radii(integrand: Integrand) -> Dict[int, Fraction]:
+    """Distance from 0 to the nearest possible massive pole, per expansion variable.
+
+    ``∫ x^(a + c v) ...`` has its poles where ``a + c v + 1 + n = 0``,
+    ``n = 0, 1, 2, ...`` (the Taylor orders at the end point; polylogarithms
+    only raise the pole order), likewise for ``(1-x)^(b + d v')`` at
+    ``x = 1``.  The pole at ``v = 0`` is the one the Laurent series keeps, so
+    the nearest other one lies at ``|v| = m/|c|``, ``m = a + 1`` if that is
+    positive, else 1.  Residues may vanish, so this is a lower bound on the
+    true radius.  Variables whose exponents never contain them are absent.
+
+    >>> from lowenergy.integrand.reader import integrand_from_text
+    >>> convergence_radii(integrand_from_text('integrand = "x^(-s-1)*(1-x)^(-t/2+1)"'))
+    {0: Fraction(1, 1), 1: Fraction(4, 1)}
+    """
+    radii: Dict[int, Fraction] = {}
+    for term in integrand.terms:
+        for e in (term.x_exp, term.y_exp):
+            if e.var is None:
+                continue
+            m = e.shift + 1 if e.shift + 1 >= 1 else 1
+            r = Fraction(m) / abs(e.coeff)
+            if e.var not in radii or r < radii[e.var]:
+                radii[e.var] = r
+    return dict(sorted(radii.items()))
 
 
 # --------------------------------------------------------------------------
@@ -468,6 +519,7 @@ def verify(integrand: Integrand, expansion: Expansion, point: Mapping, digits: i
         else:
             agree = max(0.0, min(float(digits), -float(mpmath.log10(abs(diff) / scale))))
         consistent = bool(abs(diff) <= safety * trunc + qerr)
+        status, ratio, warnings = _radius_check(integrand, point, consistent, agree)
         details = {
             "termwise": termwise.value,
             "mpmath_error_estimate": quad.error,
@@ -484,9 +536,48 @@ def verify(integrand: Integrand, expansion: Expansion, point: Mapping, digits: i
         truncation_estimate=trunc,
         quadrature_error=qerr,
         digits_agreement=agree,
-        consistent=consistent,
+        consistent=status == "consistent",
         order=N,
         digits=digits,
         safety=safety,
         details=details,
+        status=status,
+        radius_ratio=ratio,
+        warnings=warnings,
     )
+
+
+def _radius_check(integrand: Integrand, point: Mapping, consistent: bool, agree: float):
+    """``(status, radius_ratio, warnings)`` from where the point lies."""
+    radii = convergence_radii(integrand)
+    names = list(integrand.variables)
+    with mpmath.workdps(20):
+        values = [float(abs(x)) for x in _resolve_point(integrand.variables, integrand.parameters, point)[:2]]
+    ratio, worst, where = 0.0, None, 0.0
+    for v, r in radii.items():
+        q = values[v] / float(r)
+        if q > ratio:
+            ratio, worst, where = q, (names[v], r), values[v]
+    warnings = []
+    status = "consistent" if consistent else "inconsistent"
+    if worst is not None and ratio >= 1:
+        name, r = worst
+        warnings.append(
+            f"the point lies beyond the radius of convergence: |{name}| = {where:g} >= {r} "
+            f"(a pole may sit at |{name}| = {r}); the series does not converge there, so the comparison "
+            "decides nothing -- choose a point closer to 0"
+        )
+        status = "inconclusive"
+    elif worst is not None and ratio >= NEAR_RADIUS:
+        name, r = worst
+        warnings.append(
+            f"the point lies near the radius of convergence: |{name}|/{r} = {ratio:.2f}, so the terms shrink "
+            f"only like {ratio:.2f}^n and the truncation estimate is large"
+        )
+        if consistent and agree < MIN_DIGITS_NEAR_RADIUS:
+            warnings.append(
+                f"only {agree:.1f} digits agree: not counted as consistent (need {MIN_DIGITS_NEAR_RADIUS:g} "
+                "this close to the radius); choose a point closer to 0 or a higher --order"
+            )
+            status = "inconclusive"
+    return status, ratio, tuple(warnings)

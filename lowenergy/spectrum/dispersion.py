@@ -314,7 +314,7 @@ def check_dispersion(
         expansion = expand(integrand, k + j)
     i_s, i_t = (k, j) if v == 0 else (j, k)
     pkey = (0,) * len(integrand.parameters)
-    exact = expansion.coefficient(i_s, i_t).get(pkey, MZV())
+    exact = expansion.param_coefficient(i_s, i_t).get(pkey, MZV())
     dps = 3 * digits + 20
     with mpmath.workdps(dps):
         ev = _value(exact, dps)

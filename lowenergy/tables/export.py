@@ -410,12 +410,17 @@ def write_csv(expansion, path: PathLike, basis: BasisSpec = "monomial", digits: 
 
 
 _REQUIRED_HEADER = ("format", "variables", "parameters", "order", "basis")
-_REQUIRED_COLUMNS = ("name", "kind", "i", "j", "label", "param", "exact")
+_REQUIRED_COLUMNS = ("name", "kind", "i", "j", "label", "param")
 
 
 class _CsvReader:
-    def __init__(self, path: PathLike) -> None:
+    def __init__(self, path: PathLike, numeric: bool = False) -> None:
         self.path = str(os.fspath(path))
+        # numeric-only tables (no exact cells) are read when asked for
+        self.allow_numeric = numeric
+        self.exact_rows = 0
+        self.numeric_rows = 0
+        self.numeric_digits: Optional[int] = None
 
     def error(self, message: str, line: Optional[int], term: Optional[str] = None, hint: Optional[str] = None,
               cls=ParseError) -> LowEnergyError:
@@ -618,6 +623,11 @@ class _CsvReader:
                             )
                     if len(set(header_row)) != len(header_row):
                         raise self.error("repeated column name", line, ",".join(cells))
+                    if "exact" not in header_row and not (self.allow_numeric and "numeric" in header_row):
+                        raise self.error(
+                            "column 'exact' is missing", line, ",".join(cells),
+                            hint=f"columns: {', '.join(COLUMNS)} (a numeric-only table needs 'numeric')",
+                        )
                     continue
                 if len(cells) != len(header_row):
                     raise self.error(
@@ -638,6 +648,9 @@ class _CsvReader:
             if clean:
                 coeffs[key] = clean
         ups = {key: {pe: x for pe, x in pp.items() if x} for key, pp in upoles.items()}
+        meta = {}
+        if self.numeric_rows:
+            meta = {"numeric_only": True, "numeric_digits": self.digits_or_default()}
         return Expansion(
             variables=variables,
             parameters=parameters,
@@ -647,6 +660,7 @@ class _CsvReader:
             domain="sphere" if ups else "interval",
             title=meta_text.get("title", ""),
             source=meta_text.get("source", ""),
+            meta=meta,
         )
 
     def row(self, row, line, variables, parameters, order, basis, coefficients, seen, evaluate, upoles=None) -> None:
@@ -656,12 +670,24 @@ class _CsvReader:
         if kind not in ("pole", "contact", "remainder"):
             raise self.error(f"unknown kind {kind!r}", line, row["kind"], hint="kind is pole, contact or remainder")
         pe = self.param(row["param"], parameters, line)
-        exact_text = row["exact"]
-        if not exact_text.strip():
-            raise self.error("empty 'exact' cell", line, hint="every row needs its exact coefficient")
-        value = evaluate(exact_text.strip(), source=self.path, line=line)
-        if "numeric" in row:
-            self.check_numeric(row["numeric"], value, line)
+        exact_text = row.get("exact", "")
+        if exact_text.strip():
+            if self.numeric_rows:
+                raise self.mixed(line)
+            self.exact_rows += 1
+            value = evaluate(exact_text.strip(), source=self.path, line=line)
+            if "numeric" in row:
+                self.check_numeric(row["numeric"], value, line)
+        elif self.allow_numeric and row.get("numeric", "").strip():
+            if self.exact_rows:
+                raise self.mixed(line)
+            self.numeric_rows += 1
+            value = self.numeric_value(row["numeric"], line)
+        else:
+            hint = "every row needs its exact coefficient"
+            if self.allow_numeric:
+                hint = "every row needs its exact or (in a numeric-only table) its numeric value"
+            raise self.error("empty 'exact' cell", line, hint=hint)
         key = (kind, name, pe)
         if key in seen:
             raise self.error(
@@ -733,21 +759,64 @@ class _CsvReader:
                 poly = parse_polynomial(label, variables, source=self.path, line=line)
                 if not poly:
                     raise self.error(f"element {name} is zero", line, label)
+        numeric = not isinstance(value, MZV)
         for m, q in poly.items():
             if m[0] + m[1] > order:
                 continue
             slot = coefficients.setdefault(m, {})
-            slot[pe] = slot.get(pe, MZV()) + value * q
+            if numeric:
+                with mpmath.workdps(self.digits_or_default() + 10):
+                    slot[pe] = slot.get(pe, mpmath.mpf(0)) + value * (mpmath.mpf(q.numerator) / q.denominator)
+            else:
+                slot[pe] = slot.get(pe, MZV()) + value * q
+
+    def mixed(self, line: int) -> LowEnergyError:
+        return self.error(
+            "some rows have an exact value and some only a numeric one",
+            line,
+            hint="give every row its exact value, or leave every 'exact' cell empty (a numeric-only table)",
+            cls=InputError,
+        )
+
+    def numeric_value(self, cell: str, line: int):
+        """A numeric-only cell as an mpf carrying its significant digits."""
+        text = cell.strip()
+        try:
+            dec = Decimal(text)
+        except InvalidOperation:
+            raise self.error("column 'numeric' is not a decimal number", line, cell) from None
+        if not dec.is_finite():
+            raise self.error("column 'numeric' is not a finite number", line, cell)
+        sig = max(len(dec.as_tuple().digits), 1)
+        if sig > MAX_DIGITS:
+            raise self.error(f"column 'numeric' has more than {MAX_DIGITS} digits", line, cell, cls=InputError)
+        # integers ("-1.0", a pole's coefficient) count as exact; the others set the precision
+        if dec != dec.to_integral_value():
+            self.numeric_digits = sig if self.numeric_digits is None else min(self.numeric_digits, sig)
+        with mpmath.workdps(sig + 10):
+            return mpmath.mpf(text)
+
+    def digits_or_default(self) -> int:
+        return self.numeric_digits if self.numeric_digits is not None else MAX_DIGITS
 
 
-def read_csv(path: PathLike):
+def read_csv(path: PathLike, *, numeric: bool = False):
     """Read a table written by :func:`write_csv` back into an ``Expansion``.
 
     Exact values round-trip exactly.  Tables in the symmetric, sigma and
-    user bases are expanded back into monomials.  Any problem raises a
+    user bases are expanded back into monomials.  A row whose ``numeric``
+    cell contradicts its ``exact`` cell is refused.  Any problem raises a
     :class:`~lowenergy.errors.LowEnergyError` naming the file and the line.
+
+    With ``numeric=True`` a *numeric-only* table is accepted too: the
+    ``exact`` column is absent or empty in every row and the ``numeric``
+    cells are the values (the usual import from another computation).  Its
+    coefficients are then ``mpmath.mpf`` numbers instead of MZVs, and
+    ``expansion.meta`` holds ``numeric_only = True`` and ``numeric_digits``
+    (the fewest significant digits of any cell); only
+    :func:`lowenergy.constraints.check` (numerically) takes such a table.
     """
-    return _CsvReader(path).read()
+    return _CsvReader(path, numeric=numeric).read()
 
 
 # --------------------------------------------------------------------------

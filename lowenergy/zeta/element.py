@@ -226,10 +226,38 @@ class MZV:
     def __repr__(self) -> str:
         return f"MZV({self.to_text()!r})"
 
+    def _repr_latex_(self) -> str:
+        """Jupyter display: the canonical form as a formula."""
+        return "$" + self.to_text(style="latex") + "$"
+
+    def to_sympy(self):
+        """The canonical form as a sympy expression.
+
+        Single zetas become ``sympy.zeta(n)`` (sympy writes ``ζ(2k)`` as a
+        rational multiple of ``π^(2k)`` by itself); depth ≥ 2 generators
+        become :class:`lowenergy.zeta.symbolic.MultipleZeta` objects, shown as
+        ``zeta(3, 5)`` (our index order: first index on the largest summation
+        variable) and evaluated numerically by ``.evalf(n)``.  Coefficients are
+        exact ``sympy.Rational``.
+
+        >>> zeta(5, 3).to_sympy()                  # ζ(2)^4 = π^8/1296
+        -pi**8/9450 - zeta(3, 5) + zeta(3)*zeta(5)
+        """
+        from .symbolic import to_sympy
+
+        return to_sympy(self)
+
     def numeric(self, digits: int = 30) -> mpmath.mpf:
         """Numerical value to ``digits`` significant decimal digits (relative
-        to the largest term; cancellation is compensated by extra precision)."""
-        from .numeric import zeta_numeric
+        to the largest term; cancellation is compensated by extra precision).
+
+        The result is an ``mpmath.mpf`` (a :class:`~lowenergy.zeta.numeric.NumericValue`)
+        that prints with ``digits`` digits:
+
+        >>> print(zeta(3).numeric(40))
+        1.202056903159594285399738161511449990765
+        """
+        from .numeric import NumericValue, zeta_numeric
 
         gens = {g for m in self._terms for g in m}
         guard = 10 + max((len(str(abs(c.numerator))) for c in self._terms.values()), default=0)
@@ -244,7 +272,7 @@ class MZV:
             # round to the requested precision inside the local context (a bare
             # ``+total`` outside it would round to mpmath's global precision)
             total = mpmath.mpf(total)
-        return total
+        return NumericValue(total, digits)
 
     def f_alphabet(self, store: TableStore | None = None) -> Dict:
         """Image in the f-alphabet, ``{(f2_power, odd_letters): coefficient}``."""

@@ -3,7 +3,8 @@
 Syntax (see :mod:`lowenergy.parse` for the grammar): rationals and decimals,
 ``zeta(n1, ..., nk)`` (first index on the largest summation variable),
 ``G(a1, ..., an; 1)`` (shuffle-regularized value at 1, letters 0 and 1),
-``pi``, ``+ - * / ^`` and parentheses.  ``pi`` may only appear in even total
+``pi``, ``sv(<expression>)`` (the single-valued map, :func:`sv_of_tree`),
+``+ - * / ^`` and parentheses.  ``pi`` may only appear in even total
 powers in each term (``π^2 = 6 ζ(2)``); division is by rationals only;
 exponents are non-negative integers (negative ones only for rationals).
 
@@ -26,7 +27,7 @@ from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, pa
 from .element import MZV, g_value, zeta
 from .table import TableStore
 
-__all__ = ["evaluate", "evaluate_tree", "zeta_indices", "MAX_EXPONENT"]
+__all__ = ["evaluate", "evaluate_tree", "sv_of_tree", "zeta_indices", "MAX_EXPONENT"]
 
 MAX_EXPONENT = 64
 
@@ -159,6 +160,28 @@ def _g_call(node: Call, store) -> PiValue:
         raise err.located(column=node.col)
 
 
+def sv_of_tree(node: Call, fail, *, regularize: str | None = None, store: TableStore | None = None) -> MZV:
+    """``sv(x)`` for a call ``sv(<expression>)``: Brown's single-valued map on MZVs.
+
+    The argument is evaluated as an MZV expression, then mapped with
+    :func:`lowenergy.svpolylog.svmap.sv` (through the f-alphabet: sv f2 = 0,
+    sv ζ(2k+1) = 2 ζ(2k+1)).  ``fail(node, message, hint)`` builds the
+    caller's error.  The svpolylog layer sits above this one, so it is
+    imported here, at call time.
+    """
+    if node.letters is not None or len(node.args) != 1:
+        raise fail(node, "sv takes one MZV expression", "write sv(zeta(5,3))")
+    value = evaluate_tree(node.args[0], regularize=regularize, store=store)
+    if not value:
+        return value
+    from ..svpolylog.svmap import sv  # lazy: a later layer (single-valued polylogarithms)
+
+    try:
+        return sv(value, store=store)
+    except LowEnergyError as err:
+        raise err.located(column=node.col)
+
+
 def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStore | None = None) -> MZV:
     """Evaluate a parsed tree (iteratively; see :func:`evaluate`)."""
 
@@ -173,7 +196,9 @@ def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStor
             return _zeta_call(node, regularize, store)
         if node.name == "G":
             return _g_call(node, store)
-        raise _fail(node, f"unknown function {node.name!r}", "known here: zeta(...), G(...; 1)")
+        if node.name == "sv":
+            return {0: sv_of_tree(node, _fail, regularize=regularize, store=store)}
+        raise _fail(node, f"unknown function {node.name!r}", "known here: zeta(...), G(...; 1), sv(...)")
 
     def inner(node: Node, vals: list) -> PiValue:
         if isinstance(node, Neg):

@@ -276,6 +276,50 @@ def _evaluate_words(
 # public API
 # --------------------------------------------------------------------------
 
+class NumericValue(mpmath.mpf):
+    """An ``mpmath.mpf`` that remembers how many digits were asked for.
+
+    It behaves as any ``mpf`` (arithmetic gives plain ``mpf`` again); only
+    ``str`` and ``repr`` show ``digits`` significant digits instead of the
+    15 of mpmath's global precision, so that ``print(x.numeric(100))`` shows
+    the 100 digits computed.
+
+    >>> with mpmath.workdps(60):
+    ...     v = NumericValue(mpmath.mpf(1) / 3, 50)
+    >>> str(v) == "0." + "3" * 50
+    True
+    >>> type(v + 1) is mpmath.mpf
+    True
+    """
+
+    __slots__ = ("digits",)
+
+    def __new__(cls, value: mpmath.mpf, digits: int):
+        # copy the mantissa as it is: ``mpf.__new__(cls, value)`` would round
+        # it to the global precision
+        self = mpmath.mpf.__new__(cls)
+        self._mpf_ = value._mpf_
+        self.digits = digits
+        return self
+
+    def __str__(self) -> str:
+        return mpmath.nstr(self, self.digits)
+
+    def __repr__(self) -> str:
+        return f"mpf('{mpmath.nstr(self, self.digits, min_fixed=-5, max_fixed=5)}')"
+
+    def __reduce__(self):
+        return (_numeric_value, (self._mpf_, self.digits))
+
+
+def _numeric_value(raw, digits: int) -> "NumericValue":
+    """Unpickle a :class:`NumericValue` (its full precision is kept)."""
+    value = mpmath.mpf.__new__(NumericValue)
+    value._mpf_ = raw
+    value.digits = digits
+    return value
+
+
 def zeta_numeric(indices: Tuple[int, ...], digits: int = 30) -> mpmath.mpf:
     """Value of the convergent MZV ``ζ(n1, ..., nk)`` to ``digits`` digits.
 

@@ -314,7 +314,7 @@ def test_report_text_and_dict(open_string):
     report = check(wrong, read_constraints(OPEN_SET))
     text = report.to_text()
     assert "FAIL    c[1,1]" in text and "residual = zeta(3)" in text
-    assert "summary: 20 passed, 1 failed, 0 depend on free parameters (21 constraints)" in text
+    assert "summary: 20 passed, 1 failed, 0 depend on free parameters (21 constraints): failed" in text
     assert "candidate: my candidate (order 4)" in text
     data = json.loads(json.dumps(report.to_dict()))
     assert data["ok"] is False and data["summary"]["FAIL"] == 1

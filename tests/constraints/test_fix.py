@@ -289,9 +289,11 @@ def test_fix_then_write_the_fixed_integrand():
     report = fix(expand(original, 4), read_constraints(OPEN_SET))
     assert report.status == UNIQUE and report.solution == {"a1": 1, "a10": 0, "a2": -1}
     text = write_fixed_integrand(INTEGRAND_FILE, report, source="fit.toml")
-    # a10 is replaced as a whole token, never as "a1" followed by "0"
-    assert "(1)*x^(-s-1)" in text and "(-1)*x^(-s)*(1-x)^(-t-1)" in text and "(0)*x^(-s)*(1-x)^(-t)" in text
-    assert "parameters = []" in text and "# a fit" not in text  # comments are not kept
+    # a10 is replaced as a whole token, never as "a1" followed by "0"; written tidily:
+    # a factor 1 disappears, -1 becomes a sign, a term with factor 0 is dropped
+    assert 'integrand = """x^(-s-1)*(1-x)^(-t-1)\n   - x^(-s)*(1-x)^(-t-1)"""' in text
+    assert "(1)" not in text and "a10" not in text.split('"""')[1]
+    assert "parameters = []" in text and text.startswith("# a fit of the open superstring\n")  # comments kept
     assert "Parameters fixed by lowenergy: a1 = 1, a10 = 0, a2 = -1" in text
     itg = integrand_from_text(text, "fixed.toml")
     assert itg.parameters == () and itg.title == "fit" and itg.notes.startswith("three terms\n")
@@ -300,7 +302,7 @@ def test_fix_then_write_the_fixed_integrand():
 
 def test_write_fixed_integrand_substitutes_tokens_only():
     text = write_fixed_integrand(INTEGRAND_FILE, {"a1": Fraction(7, 2)}, source="fit.toml")
-    assert "(7/2)*x^(-s-1)" in text and "a10*x^(-s)" in text and "a2*x^(-s)" in text
+    assert "7/2*x^(-s-1)" in text and "a10*x^(-s)" in text and "a2*x^(-s)" in text
     assert 'parameters = ["a10", "a2"]' in text
 
 
@@ -327,3 +329,70 @@ def test_escapes_survive_rewriting():
     source = 'title = "quote \\" and tab \\t é"\nparameters = ["a"]\nintegrand = "a*x^(-s-1)*(1-x)^(-t-1)"\n'
     text = write_fixed_integrand(source, {"a": Fraction(1, 3)})
     assert integrand_from_text(text).title == 'quote " and tab \t é'
+
+
+# --------------------------------------------------------------------------
+# layout kept, polynomials tidy (tomlkit edits the document in place)
+# --------------------------------------------------------------------------
+
+LAYOUT_FILE = """# header comment: where the ansatz comes from
+title = "layout"   # trailing comment
+
+# the free coefficients
+parameters = ["p", "q", "r", "w"]  # four of them
+integrand = \"\"\"
+x^(-s-1)*(1-x)^(-t-1) * (1
+   + p*s*t*log(x)
+   + q*s^2
+   + r*t
+   + s*t^2*w)
+\"\"\"
+[extra]
+""".replace("[extra]\n", "")
+
+
+@pytest.mark.parametrize(
+    "values, lines",
+    [
+        # p = 1: no "(1)*"; q = -1/2: the sign moves in front; r = 0: the line goes; w = 3 at the end of a product
+        ({"p": 1, "q": Fraction(-1, 2), "r": 0, "w": 3},
+         ["   + s*t*log(x)", "   - 1/2*s^2", "   + s*t^2*3)"]),
+        ({"p": -1, "q": 2, "r": Fraction(1, 3), "w": 1},
+         ["   - s*t*log(x)", "   + 2*s^2", "   + 1/3*t", "   + s*t^2)"]),
+    ],
+)
+def test_rewrite_keeps_comments_and_layout_and_is_tidy(values, lines):
+    text = write_fixed_integrand(LAYOUT_FILE, {k: Fraction(v) for k, v in values.items()}, source="layout.toml")
+    assert text.startswith("# header comment: where the ansatz comes from\ntitle = \"layout\"   # trailing comment\n\n")
+    assert "# the free coefficients\nparameters = []  # four of them\n" in text
+    assert 'integrand = """\nx^(-s-1)*(1-x)^(-t-1) * (1\n' in text
+    body = text.split('"""')[1]
+    assert body.splitlines()[2:] == lines, body
+    assert "(" + str(values["p"]) + ")" not in body and "  +" not in body.replace("\n   +", "")
+    # the rewritten file is the substituted integrand, exactly (the writer checks this too)
+    original = integrand_from_text(LAYOUT_FILE)
+    rewritten = integrand_from_text(text)
+    assert rewritten.parameters == ()
+    assert expand(rewritten, 3).coefficients == expand(substitute(original, values), 3).coefficients
+
+
+@pytest.mark.parametrize(
+    "expression, values, expected",
+    [
+        ("a*s + b*t", {"a": 0, "b": 0}, "0"),
+        ("s*a", {"a": 1}, "s"),
+        ("s*a", {"a": -2}, "s*(-2)"),
+        ("a*s - b*t", {"a": -1, "b": -1}, "-s + t"),
+        ("(a*s + t)", {"a": 0}, "(t)"),
+        ("(t - a*s)", {"a": 0}, "(t)"),
+        ("s^a", {"a": 2}, "s^(2)"),
+        ("t/a", {"a": Fraction(1, 2)}, "t/(1/2)"),
+        ("a", {"a": Fraction(-3, 4)}, "-3/4"),
+        ("x^(-s-1)*a1 + a10", {"a1": 5, "a10": 0}, "x^(-s-1)*5"),
+    ],
+)
+def test_tidy_substitute_cases(expression, values, expected):
+    from lowenergy.constraints.rewrite import tidy_substitute
+
+    got = tidy_substitute(expression, {k: (Fraction(v), {}) for k, v in values.items()})
+    assert got == expected
