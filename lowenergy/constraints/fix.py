@@ -101,7 +101,7 @@ from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from ..zeta.format import fraction_text
 from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, check, check_order, exact_sides
-from .linalg import Echelon
+from .linalg import Echelon, IncrementalBasis
 from .linalg import consistent as linalg_consistent
 from .model import Constraint, ConstraintSet, pole_levels_needed
 from .poles import Condition, crossing_contact_conditions, crossing_pole_conditions, pole_conditions
@@ -596,12 +596,11 @@ def fix(
     further_results: List[Tuple[str, Optional[int], str]] = []
     residue_suggestions: Tuple[str, ...] = ()
     if has_poles:
-        sub = _Substituter(params, substitution)
+        affine = _affine_map(params, substitution, free)
         for cond in further:
-            fixed_cond = dataclasses.replace(cond, residuals=[(w, sub.poly(pp, 0)) for w, pp in cond.residuals])
-            further_results.append((cond.label, cond.level, fixed_cond.status()))
+            further_results.append((cond.label, cond.level, _rows_status(_pole_rows(cond, n, params), affine, n)))
         if free:
-            residue_suggestions = _suggest_residues(poles, sub, len(free))
+            residue_suggestions = _suggest_residues(poles, affine, n, params, len(free))
     return FixReport(
         status=status,
         solution=solution,
@@ -619,30 +618,67 @@ def fix(
     )
 
 
-def _suggest_residues(poles, sub: "_Substituter", nfree: int) -> Tuple[str, ...]:
+AffineMap = List[Tuple[Fraction, Dict[int, Fraction]]]
+
+
+def _affine_map(params: Sequence[str], substitution: Dict[str, Affine], free: Sequence[str]) -> AffineMap:
+    """Every parameter as ``(constant, {index of a free parameter: coefficient})``."""
+    index = {name: k for k, name in enumerate(free)}
+    out: AffineMap = []
+    for name in params:
+        if name in substitution:
+            const, deps = substitution[name]
+            out.append((const, {index[f]: q for f, q in deps.items() if q}))
+        else:
+            out.append((Fraction(0), {index[name]: Fraction(1)}))
+    return out
+
+
+def _apply(row: Dict[int, Fraction], affine: AffineMap, n: int) -> Tuple[Fraction, Dict[int, Fraction]]:
+    """A row ``Σ q_i a_i = rhs`` at the solution: ``(value of Σ q_i a_i − rhs, free part)``."""
+    const = -row.get(n, Fraction(0))
+    part: Dict[int, Fraction] = {}
+    for col, q in row.items():
+        if col == n:
+            continue
+        c, deps = affine[col]
+        const += q * c
+        for f, d in deps.items():
+            part[f] = part.get(f, Fraction(0)) + q * d
+    return const, {f: q for f, q in part.items() if q}
+
+
+def _rows_status(rows, affine: AffineMap, n: int) -> str:
+    """PASS (every row holds at the solution), FAIL (some row fails whatever the
+    free parameters), DEPENDS (on free parameters)."""
+    status = "PASS"
+    for row in rows:
+        const, part = _apply(row, affine, n)
+        if not part and const:
+            return "FAIL"
+        if part:
+            status = "DEPENDS"
+    return status
+
+
+def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], nfree: int) -> Tuple[str, ...]:
     """A greedy smallest set of pole-numerator coefficients that would fix the free parameters."""
-    echelon = Echelon(nfree + 1)
+    basis = IncrementalBasis()
     chosen: List[str] = []
     for (v, p) in sorted(poles.poles, key=lambda k: (abs(k[1]), k[0])):
         for k in sorted(poles.poles[(v, p)], reverse=True):
             for power in sorted(poles.poles[(v, p)][k]):
-                pp = sub.poly(poles.poles[(v, p)][k][power], 0)
-                rows: Dict[tuple, Dict[int, Fraction]] = {}
-                for pe, x in pp.items():
-                    if sum(pe) != 1:
-                        continue
-                    col = pe.index(1)
-                    for mono, q in x.as_dict().items():
-                        rows.setdefault(mono, {})[col] = q
+                pp = poles.poles[(v, p)][k][power]
+                cond = Condition("", "", "pole", None, None, [("", pp)])
+                rows = [part for _, part in (_apply(r, affine, n) for r in _pole_rows(cond, n, params)) if part]
                 if not rows:
                     continue
-                before = echelon.rank
-                echelon.add(rows.values())
-                if echelon.rank > before:
+                added = [basis.add(r) for r in rows]
+                if any(added):
                     var, other = ("s", "t") if v == 0 else ("t", "s")
                     mono = "1" if power == 0 else (other if power == 1 else f"{other}^{power}")
                     chosen.append(f"numerator of 1/({var}-{fraction_text(p)})^{k}, coefficient of {mono}")
-                if echelon.rank == nfree:
+                if basis.rank == nfree:
                     return tuple(chosen)
     return tuple(chosen)
 

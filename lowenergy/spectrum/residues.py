@@ -617,6 +617,106 @@ def _endpoint_poles(
                 _padd(slot, key, value * scale)
 
 
+# Flat rational form of the same computation (the fast path).  MZV elements are
+# canonical polynomials in the generators, so a product of two of them is the
+# concatenation of monomials (``_mono_mul``): working on ``{monomial:
+# Fraction}`` dicts avoids building an MZV object per intermediate product,
+# which dominated the time for ansätze with hundreds of parameters.
+
+FlatPoly = Dict[Tuple[Tuple[int, ...], tuple], Fraction]   # {(exponent key, MZV monomial): q}
+
+
+def _endpoint_poles_flat(
+    coefficient: Poly,
+    near,
+    far,
+    words: Dict[Tuple[int, ...], MZV],
+    levels: int,
+    nvars: int,
+    out: Dict[Tuple[int, Fraction], Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]]],
+) -> None:
+    """:func:`_endpoint_poles` for ``near.var`` not None, accumulating flat
+    ``{(key, monomial): Fraction}`` dicts in ``out[(var, location)][order]``."""
+    from ..zeta.element import _mono_mul
+
+    m_values = _m_range(near.shift, near.coeff, levels)
+    if not m_values:
+        return
+    order = m_values[-1]
+    binom = _binomial_series(far.shift, far.coeff, order)
+    # E_{m,k}: {(power of the far variable, monomial): q}
+    expansions: Dict[Tuple[int, int], Dict[Tuple[int, tuple], Fraction]] = {}
+    for u, cu in words.items():
+        cflat = list(cu.as_dict().items())
+        series = g_series_at_zero(u, order)
+        for k, g in series.items():
+            for m in m_values:
+                acc: List[Fraction] = []
+                for mp in range(m + 1):
+                    gc = g[m - mp]
+                    if not gc:
+                        continue
+                    b = binom[mp]
+                    if len(acc) < len(b):
+                        acc.extend([Fraction(0)] * (len(b) - len(acc)))
+                    for power, bc in enumerate(b):
+                        if bc:
+                            acc[power] += bc * gc
+                if not any(acc):
+                    continue
+                slot = expansions.setdefault((m, k), {})
+                for power, value in enumerate(acc):
+                    if not value:
+                        continue
+                    if far.var is None and power:
+                        raise AssertionError("binomial series without variable has degree 0")
+                    for mono, q in cflat:
+                        key = (power, mono)
+                        slot[key] = slot.get(key, Fraction(0)) + value * q
+    c = near.coeff
+    v = near.var
+    coef_flat = [(key, list(x.as_dict().items())) for key, x in coefficient.items() if x]
+    shifted: Dict[Fraction, Dict[int, List[Tuple[Tuple[int, ...], tuple, Fraction]]]] = {}
+    for (m, k), poly in expansions.items():
+        poly = {key: q for key, q in poly.items() if q}
+        if not poly:
+            continue
+        p = Fraction(-(near.shift + m + 1)) / c
+        if abs(p) > levels:
+            continue
+        if p not in shifted:
+            # Taylor coefficients of the coefficient around near = p: {r: [(rest key, mono, q)]}
+            by_r: Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]] = {}
+            for key, flat in coef_flat:
+                e = key[v]
+                rest = key[:v] + (0,) + key[v + 1 :]
+                for r in range(e + 1):
+                    factor = math.comb(e, r) * p ** (e - r)
+                    if not factor:
+                        continue
+                    slot = by_r.setdefault(r, {})
+                    for mono, q in flat:
+                        kk = (rest, mono)
+                        slot[kk] = slot.get(kk, Fraction(0)) + q * factor
+            shifted[p] = {r: [(kk[0], kk[1], q) for kk, q in d.items() if q] for r, d in by_r.items()}
+        scale = Fraction((-1) ** k) / c ** (k + 1)
+        for r, entries in shifted[p].items():
+            j = k + 1 - r
+            if j < 1:
+                continue
+            target = out.setdefault((v, p), {}).setdefault(j, {})
+            for (power, monob), qb in poly.items():
+                qb = qb * scale
+                for rest, monoa, qa in entries:
+                    if far.var is not None and power:
+                        key = rest[: far.var] + (rest[far.var] + power,) + rest[far.var + 1 :]
+                    else:
+                        key = rest
+                    mono = _mono_mul(monoa, monob) if monoa and monob else (monoa or monob)
+                    kk = (key, mono)
+                    target[kk] = target.get(kk, Fraction(0)) + qa * qb
+
+
 def residues(integrand: Integrand, levels: int, *, store: TableStore | None = None) -> ResidueTable:
     """Exact pole parts of ``∫_0^1 (integrand) dx`` at ``s = p`` and ``t = p``, ``|p| ≤ levels``.
 
@@ -655,6 +755,16 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
     store = store or default_store()
     nvars = integrand.nvars
     raw: Dict[Tuple[int, Fraction], Dict[int, Poly]] = {}
+    flat: Dict[Tuple[int, Fraction], Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]]] = {}
+
+    def endpoint(coefficient, near, far, words):
+        if near.var is None or far.var == near.var:
+            # (the flat path Taylor-shifts only the coefficient, so it needs the
+            # binomial series of the other end point free of the near variable)
+            _endpoint_poles(coefficient, near, far, words, levels, nvars, raw)
+        else:
+            _endpoint_poles_flat(coefficient, near, far, words, levels, nvars, flat)
+
     for term in integrand.terms:
         term: Term
         if not term.coefficient:
@@ -662,12 +772,21 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
         word = tuple(term.word)
         try:
             # x -> 0
-            _endpoint_poles(term.coefficient, term.x_exp, term.y_exp, {word: MZV.one()}, levels, nvars, raw)
+            endpoint(term.coefficient, term.x_exp, term.y_exp, {word: MZV.one()})
             # x -> 1, after x -> 1 - x: (1-y)^(x_exp) y^(y_exp) G(word; 1-y)
             flipped = g_of_one_minus_x(word, store=store) if word else {(): MZV.one()}
-            _endpoint_poles(term.coefficient, term.y_exp, term.x_exp, flipped, levels, nvars, raw)
+            endpoint(term.coefficient, term.y_exp, term.x_exp, flipped)
         except InputError as err:
             raise err.located(source=integrand.source, line=term.source_line, term=term.text)
+    for place, orders in flat.items():
+        for j, entries in orders.items():
+            grouped: Dict[Tuple[int, ...], Dict[tuple, Fraction]] = {}
+            for (key, mono), q in entries.items():
+                if q:
+                    grouped.setdefault(key, {})[mono] = q
+            slot = raw.setdefault(place, {}).setdefault(j, {})
+            for key, terms in grouped.items():
+                _padd(slot, key, MZV(terms))
     poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]] = {}
     for (v, p), orders in raw.items():
         other = 1 - v
