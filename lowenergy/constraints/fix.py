@@ -444,19 +444,33 @@ def _collect(constraints) -> Tuple[List[ConstraintSet], Tuple[Constraint, ...]]:
     return sets, tuple(items)
 
 
+_COLUMN_CACHE: Dict[int, Tuple[tuple, int]] = {}
+
+
 def _pole_rows(cond: Condition, n: int, params: Sequence[str]) -> List[Dict[int, Fraction]]:
     """Sparse rows ``{column: q, n: -q0}`` of a condition, one per residual and MZV monomial."""
     out: List[Dict[int, Fraction]] = []
     for what, pp in cond.residuals:
         rows: Dict[tuple, Dict[int, Fraction]] = {}
         for pe, x in pp.items():
-            if sum(pe) > 1:
+            # the column of an exponent tuple, cached by identity: the pole tables share
+            # one tuple object per parameter, and for hundreds of parameters sum()
+            # and index() on every entry would dominate
+            hit = _COLUMN_CACHE.get(id(pe))
+            if hit is not None and hit[0] is pe:
+                col = hit[1]
+            else:
+                total = sum(pe)
+                col = -1 if total > 1 else (pe.index(1) if total else n)
+                if len(_COLUMN_CACHE) > 100_000:
+                    _COLUMN_CACHE.clear()
+                _COLUMN_CACHE[id(pe)] = (pe, col)
+            if col < 0:
                 raise InputError(
                     f"'{cond.label}' is not linear in the parameters ({what} contains {_mono_text(pe, params)})",
                     source=cond.source, line=cond.line, term=_mono_text(pe, params),
                     hint="pole and crossing constraints fix integrands that are linear in their parameters",
                 )
-            col = pe.index(1) if any(pe) else n
             for mono, q in x.as_dict().items():
                 row = rows.setdefault(mono, {})
                 row[col] = row.get(col, Fraction(0)) + (q if col < n else -q)

@@ -69,6 +69,8 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
 
+import flint
+
 from ..errors import InputError
 from ..integrand.model import Integrand, Poly, Term
 from ..integrand.transform import g_of_one_minus_x
@@ -626,6 +628,19 @@ def _endpoint_poles(
 FlatPoly = Dict[Tuple[Tuple[int, ...], tuple], Fraction]   # {(exponent key, MZV monomial): q}
 
 
+def _q(x: Fraction) -> "flint.fmpq":
+    """A Fraction as python-flint's fmpq (exact; C arithmetic in the hot loop)."""
+    return flint.fmpq(x.numerator, x.denominator)
+
+
+def _mzv_from_flat(terms: Dict[tuple, "flint.fmpq"]) -> MZV:
+    """An MZV from canonical monomials (products via ``_mono_mul`` are sorted) and fmpq values."""
+    out = MZV.__new__(MZV)
+    out._terms = {m: Fraction(int(q.p), int(q.q)) for m, q in terms.items() if q}
+    out._hash = None
+    return out
+
+
 def _endpoint_poles_flat(
     coefficient: Poly,
     near,
@@ -634,9 +649,12 @@ def _endpoint_poles_flat(
     levels: int,
     nvars: int,
     out: Dict[Tuple[int, Fraction], Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]]],
+    pindex,
 ) -> None:
-    """:func:`_endpoint_poles` for ``near.var`` not None, accumulating flat
-    ``{(key, monomial): Fraction}`` dicts in ``out[(var, location)][order]``."""
+    """:func:`_endpoint_poles` for ``near.var`` not None (and the other end
+    point's exponent free of it), accumulating flat ``{((power of the other
+    variable, parameter exponents), monomial): Fraction}`` dicts in
+    ``out[(var, location)][order]``."""
     from ..zeta.element import _mono_mul
 
     m_values = _m_range(near.shift, near.coeff, levels)
@@ -675,10 +693,15 @@ def _endpoint_poles_flat(
                         slot[key] = slot.get(key, Fraction(0)) + value * q
     c = near.coeff
     v = near.var
-    coef_flat = [(key, list(x.as_dict().items())) for key, x in coefficient.items() if x]
+    o = 1 - v
+    # keys inside: (power of the other variable, index of the parameter
+    # exponents): for ansätze with hundreds of parameters the exponent tuples
+    # are long, and hashing them per product would cost that length each time
+    coef_flat = [(key[v], key[o], pindex(tuple(key[2:])), [(m, _q(q)) for m, q in x.as_dict().items()])
+                 for key, x in coefficient.items() if x]
     shifted: Dict[Fraction, Dict[int, List[Tuple[Tuple[int, ...], tuple, Fraction]]]] = {}
     for (m, k), poly in expansions.items():
-        poly = {key: q for key, q in poly.items() if q}
+        poly = {key: _q(q) for key, q in poly.items() if q}
         if not poly:
             continue
         p = Fraction(-(near.shift + m + 1)) / c
@@ -687,19 +710,19 @@ def _endpoint_poles_flat(
         if p not in shifted:
             # Taylor coefficients of the coefficient around near = p: {r: [(rest key, mono, q)]}
             by_r: Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]] = {}
-            for key, flat in coef_flat:
-                e = key[v]
-                rest = key[:v] + (0,) + key[v + 1 :]
+            for e, fe, pkey, flat in coef_flat:
+                rest = (fe, pkey)
                 for r in range(e + 1):
                     factor = math.comb(e, r) * p ** (e - r)
                     if not factor:
                         continue
+                    factor = _q(factor)
                     slot = by_r.setdefault(r, {})
                     for mono, q in flat:
                         kk = (rest, mono)
-                        slot[kk] = slot.get(kk, Fraction(0)) + q * factor
+                        slot[kk] = slot[kk] + q * factor if kk in slot else q * factor
             shifted[p] = {r: [(kk[0], kk[1], q) for kk, q in d.items() if q] for r, d in by_r.items()}
-        scale = Fraction((-1) ** k) / c ** (k + 1)
+        scale = _q(Fraction((-1) ** k) / c ** (k + 1))
         for r, entries in shifted[p].items():
             j = k + 1 - r
             if j < 1:
@@ -708,13 +731,10 @@ def _endpoint_poles_flat(
             for (power, monob), qb in poly.items():
                 qb = qb * scale
                 for rest, monoa, qa in entries:
-                    if far.var is not None and power:
-                        key = rest[: far.var] + (rest[far.var] + power,) + rest[far.var + 1 :]
-                    else:
-                        key = rest
+                    key = (rest[0] + power, rest[1]) if power else rest
                     mono = _mono_mul(monoa, monob) if monoa and monob else (monoa or monob)
                     kk = (key, mono)
-                    target[kk] = target.get(kk, Fraction(0)) + qa * qb
+                    target[kk] = target[kk] + qa * qb if kk in target else qa * qb
 
 
 def residues(integrand: Integrand, levels: int, *, store: TableStore | None = None) -> ResidueTable:
@@ -756,6 +776,14 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
     nvars = integrand.nvars
     raw: Dict[Tuple[int, Fraction], Dict[int, Poly]] = {}
     flat: Dict[Tuple[int, Fraction], Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]]] = {}
+    pkeys: List[Tuple[int, ...]] = []
+    pindices: Dict[Tuple[int, ...], int] = {}
+
+    def pindex(pkey: Tuple[int, ...]) -> int:
+        if pkey not in pindices:
+            pindices[pkey] = len(pkeys)
+            pkeys.append(pkey)
+        return pindices[pkey]
 
     def endpoint(coefficient, near, far, words):
         if near.var is None or far.var == near.var:
@@ -763,7 +791,7 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
             # binomial series of the other end point free of the near variable)
             _endpoint_poles(coefficient, near, far, words, levels, nvars, raw)
         else:
-            _endpoint_poles_flat(coefficient, near, far, words, levels, nvars, flat)
+            _endpoint_poles_flat(coefficient, near, far, words, levels, nvars, flat, pindex)
 
     for term in integrand.terms:
         term: Term
@@ -778,15 +806,6 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
             endpoint(term.coefficient, term.y_exp, term.x_exp, flipped)
         except InputError as err:
             raise err.located(source=integrand.source, line=term.source_line, term=term.text)
-    for place, orders in flat.items():
-        for j, entries in orders.items():
-            grouped: Dict[Tuple[int, ...], Dict[tuple, Fraction]] = {}
-            for (key, mono), q in entries.items():
-                if q:
-                    grouped.setdefault(key, {})[mono] = q
-            slot = raw.setdefault(place, {}).setdefault(j, {})
-            for key, terms in grouped.items():
-                _padd(slot, key, MZV(terms))
     poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]] = {}
     for (v, p), orders in raw.items():
         other = 1 - v
@@ -800,6 +819,29 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
                 conv[m] = rp
         if conv:
             poles[(v, p)] = conv
+    for place, orders in flat.items():
+        for j, entries in orders.items():
+            grouped: Dict[Tuple[int, Tuple[int, ...]], Dict[tuple, Fraction]] = {}
+            for (key, mono), q in entries.items():
+                if q:
+                    grouped.setdefault(key, {})[mono] = q
+            for (power, pk), terms in grouped.items():
+                pkey = pkeys[pk]
+                value = _mzv_from_flat(terms)
+                if not value:
+                    continue
+                slot = poles.setdefault(place, {}).setdefault(j, {}).setdefault(power, {})
+                if pkey in slot:
+                    _padd(slot, pkey, value)
+                else:
+                    slot[pkey] = value
+    for place in list(poles):
+        orders = {j: {pw: pp for pw, pp in rp.items() if pp} for j, rp in poles[place].items()}
+        orders = {j: rp for j, rp in orders.items() if rp}
+        if orders:
+            poles[place] = orders
+        else:
+            del poles[place]
     return ResidueTable(
         variables=tuple(integrand.variables),
         parameters=tuple(integrand.parameters),

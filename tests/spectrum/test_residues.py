@@ -385,18 +385,21 @@ def test_flat_fast_path_agrees_with_the_mzv_path():
         slow: dict = {}
         _endpoint_poles(coefficient, near, far, words, 5, 4, slow)
         flat: dict = {}
-        _endpoint_poles_flat(coefficient, near, far, words, 5, 4, flat)
+        pkeys: list = []
+        _endpoint_poles_flat(coefficient, near, far, words, 5, 4, flat, lambda k: pkeys.append(k) or len(pkeys) - 1)
         fast: dict = {}
         for place, orders in flat.items():
             for j, entries in orders.items():
                 grouped: dict = {}
-                for (key, mono), q in entries.items():
+                for ((power, pk), mono), q in entries.items():
                     if q:
-                        grouped.setdefault(key, {})[mono] = q
+                        grouped.setdefault((power, pkeys[pk]), {})[mono] = Q(int(q.p), int(q.q))
                 polys = {key: MZV(t) for key, t in grouped.items() if MZV(t)}
                 if polys:
                     fast.setdefault(place, {})[j] = polys
-        slow = {p: {j: {k: x for k, x in poly.items() if x} for j, poly in o.items()} for p, o in slow.items()}
+        # the flat path keys by (power of the other variable t, parameter exponents)
+        slow = {p: {j: {(k[1], k[2:]): x for k, x in poly.items() if x} for j, poly in o.items()}
+                for p, o in slow.items()}
         slow = {p: {j: poly for j, poly in o.items() if poly} for p, o in slow.items()}
         slow = {p: o for p, o in slow.items() if o}
         assert fast == slow and fast
