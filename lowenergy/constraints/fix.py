@@ -698,34 +698,44 @@ def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], n
 
 
 def _suggest(fixed: Expansion) -> Tuple[Tuple[str, ...], Tuple[str, ...], Tuple[str, ...]]:
-    """Coefficients depending on the free parameters; a greedy fixing set; unfixable parameters."""
+    """Coefficients depending on the free parameters; a greedy fixing set; unfixable parameters.
+
+    The greedy choice keeps a coefficient when one of its rational rows (one
+    per canonical MZV monomial, over the free parameters) is independent of
+    the rows kept so far (:class:`IncrementalBasis`); a free parameter is
+    fixable when the reduced form of all kept rows has a row that is 1 at it
+    and 0 elsewhere.
+    """
     params = fixed.parameters
     n = len(params)
     depending: List[str] = []
     suggestions: List[str] = []
-    basis: List[Row] = []
+    basis = IncrementalBasis()
+    kept: List[Dict[int, Fraction]] = []
     for key in fixed.monomials():
         pp = fixed.coefficients.get(key, {})
         if not any(any(pe) and x for pe, x in pp.items()):
             continue
         name = f"c[{key[0]},{key[1]}]"
         depending.append(name)
-        rows: Dict[tuple, Row] = {}
+        if basis.rank >= n:
+            continue
+        rows: Dict[tuple, Dict[int, Fraction]] = {}
         for pe, x in pp.items():
             if sum(pe) == 1:
                 col = pe.index(1)
                 for mono, q in x.as_dict().items():
-                    rows.setdefault(mono, [Fraction(0)] * n)[col] += q
-        if len(basis) < n:
-            trial = basis + [r for r in rows.values() if any(r)]
-            reduced, _ = _rref(trial, n)
-            if len(reduced) > len(basis):
-                suggestions.append(name)
-                basis = reduced
-    reduced, pivots = _rref(basis, n)
+                    row = rows.setdefault(mono, {})
+                    row[col] = row.get(col, Fraction(0)) + q
+        new = [r for r in rows.values() if any(r.values()) and basis.add(r)]
+        if new:
+            suggestions.append(name)
+            kept.extend(new)
+    echelon = Echelon(n + 1)
+    echelon.add(kept)
     fixable = set()
-    for row, col in zip(reduced, pivots):
-        if all(row[k] == 0 for k in range(n) if k != col):
+    for col, row in echelon.solution_rows():
+        if not any(q for c, q in row.items() if c < n):
             fixable.add(col)
     unfixable = tuple(params[k] for k in range(n) if k not in fixable)
     return tuple(depending), tuple(suggestions), unfixable
