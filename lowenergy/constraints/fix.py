@@ -101,7 +101,7 @@ from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from ..zeta.format import fraction_text
 from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, check, check_order, exact_sides
-from .linalg import Echelon
+from .linalg import Echelon, IncrementalBasis
 from .linalg import consistent as linalg_consistent
 from .model import Constraint, ConstraintSet, pole_levels_needed
 from .rewrite import rewrite_toml
@@ -440,19 +440,33 @@ def _collect(constraints) -> Tuple[List[ConstraintSet], Tuple[Constraint, ...]]:
     return sets, tuple(items)
 
 
+_COLUMN_CACHE: Dict[int, Tuple[tuple, int]] = {}
+
+
 def _pole_rows(cond: Condition, n: int, params: Sequence[str]) -> List[Dict[int, Fraction]]:
     """Sparse rows ``{column: q, n: -q0}`` of a condition, one per residual and MZV monomial."""
     out: List[Dict[int, Fraction]] = []
     for what, pp in cond.residuals:
         rows: Dict[tuple, Dict[int, Fraction]] = {}
         for pe, x in pp.items():
-            if sum(pe) > 1:
+            # the column of an exponent tuple, cached by identity: the pole tables share
+            # one tuple object per parameter, and for hundreds of parameters sum()
+            # and index() on every entry would dominate
+            hit = _COLUMN_CACHE.get(id(pe))
+            if hit is not None and hit[0] is pe:
+                col = hit[1]
+            else:
+                total = sum(pe)
+                col = -1 if total > 1 else (pe.index(1) if total else n)
+                if len(_COLUMN_CACHE) > 100_000:
+                    _COLUMN_CACHE.clear()
+                _COLUMN_CACHE[id(pe)] = (pe, col)
+            if col < 0:
                 raise InputError(
                     f"'{cond.label}' is not linear in the parameters ({what} contains {_mono_text(pe, params)})",
                     source=cond.source, line=cond.line, term=_mono_text(pe, params),
                     hint="pole and crossing constraints fix integrands that are linear in their parameters",
                 )
-            col = pe.index(1) if any(pe) else n
             for mono, q in x.as_dict().items():
                 row = rows.setdefault(mono, {})
                 row[col] = row.get(col, Fraction(0)) + (q if col < n else -q)
@@ -592,12 +606,11 @@ def fix(
     further_results: List[Tuple[str, Optional[int], str]] = []
     residue_suggestions: Tuple[str, ...] = ()
     if has_poles:
-        sub = _Substituter(params, substitution)
+        affine = _affine_map(params, substitution, free)
         for cond in further:
-            fixed_cond = dataclasses.replace(cond, residuals=[(w, sub.poly(pp, 0)) for w, pp in cond.residuals])
-            further_results.append((cond.label, cond.level, fixed_cond.status()))
+            further_results.append((cond.label, cond.level, _rows_status(_pole_rows(cond, n, params), affine, n)))
         if free:
-            residue_suggestions = _suggest_residues(poles, sub, len(free))
+            residue_suggestions = _suggest_residues(poles, affine, n, params, len(free))
     return FixReport(
         status=status,
         solution=solution,
@@ -615,63 +628,110 @@ def fix(
     )
 
 
-def _suggest_residues(poles, sub: "_Substituter", nfree: int) -> Tuple[str, ...]:
+AffineMap = List[Tuple[Fraction, Dict[int, Fraction]]]
+
+
+def _affine_map(params: Sequence[str], substitution: Dict[str, Affine], free: Sequence[str]) -> AffineMap:
+    """Every parameter as ``(constant, {index of a free parameter: coefficient})``."""
+    index = {name: k for k, name in enumerate(free)}
+    out: AffineMap = []
+    for name in params:
+        if name in substitution:
+            const, deps = substitution[name]
+            out.append((const, {index[f]: q for f, q in deps.items() if q}))
+        else:
+            out.append((Fraction(0), {index[name]: Fraction(1)}))
+    return out
+
+
+def _apply(row: Dict[int, Fraction], affine: AffineMap, n: int) -> Tuple[Fraction, Dict[int, Fraction]]:
+    """A row ``Σ q_i a_i = rhs`` at the solution: ``(value of Σ q_i a_i − rhs, free part)``."""
+    const = -row.get(n, Fraction(0))
+    part: Dict[int, Fraction] = {}
+    for col, q in row.items():
+        if col == n:
+            continue
+        c, deps = affine[col]
+        const += q * c
+        for f, d in deps.items():
+            part[f] = part.get(f, Fraction(0)) + q * d
+    return const, {f: q for f, q in part.items() if q}
+
+
+def _rows_status(rows, affine: AffineMap, n: int) -> str:
+    """PASS (every row holds at the solution), FAIL (some row fails whatever the
+    free parameters), DEPENDS (on free parameters)."""
+    status = "PASS"
+    for row in rows:
+        const, part = _apply(row, affine, n)
+        if not part and const:
+            return "FAIL"
+        if part:
+            status = "DEPENDS"
+    return status
+
+
+def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], nfree: int) -> Tuple[str, ...]:
     """A greedy smallest set of pole-numerator coefficients that would fix the free parameters."""
-    echelon = Echelon(nfree + 1)
+    basis = IncrementalBasis()
     chosen: List[str] = []
     for (v, p) in sorted(poles.poles, key=lambda k: (abs(k[1]), k[0])):
         for k in sorted(poles.poles[(v, p)], reverse=True):
             for power in sorted(poles.poles[(v, p)][k]):
-                pp = sub.poly(poles.poles[(v, p)][k][power], 0)
-                rows: Dict[tuple, Dict[int, Fraction]] = {}
-                for pe, x in pp.items():
-                    if sum(pe) != 1:
-                        continue
-                    col = pe.index(1)
-                    for mono, q in x.as_dict().items():
-                        rows.setdefault(mono, {})[col] = q
+                pp = poles.poles[(v, p)][k][power]
+                cond = Condition("", "", "pole", None, None, [("", pp)])
+                rows = [part for _, part in (_apply(r, affine, n) for r in _pole_rows(cond, n, params)) if part]
                 if not rows:
                     continue
-                before = echelon.rank
-                echelon.add(rows.values())
-                if echelon.rank > before:
+                added = [basis.add(r) for r in rows]
+                if any(added):
                     var, other = ("s", "t") if v == 0 else ("t", "s")
                     mono = "1" if power == 0 else (other if power == 1 else f"{other}^{power}")
                     chosen.append(f"numerator of 1/({var}-{fraction_text(p)})^{k}, coefficient of {mono}")
-                if echelon.rank == nfree:
+                if basis.rank == nfree:
                     return tuple(chosen)
     return tuple(chosen)
 
 
 def _suggest(fixed: Expansion) -> Tuple[Tuple[str, ...], Tuple[str, ...], Tuple[str, ...]]:
-    """Coefficients depending on the free parameters; a greedy fixing set; unfixable parameters."""
+    """Coefficients depending on the free parameters; a greedy fixing set; unfixable parameters.
+
+    The greedy choice keeps a coefficient when one of its rational rows (one
+    per canonical MZV monomial, over the free parameters) is independent of
+    the rows kept so far (:class:`IncrementalBasis`); a free parameter is
+    fixable when the reduced form of all kept rows has a row that is 1 at it
+    and 0 elsewhere.
+    """
     params = fixed.parameters
     n = len(params)
     depending: List[str] = []
     suggestions: List[str] = []
-    basis: List[Row] = []
+    basis = IncrementalBasis()
+    kept: List[Dict[int, Fraction]] = []
     for key in fixed.monomials():
         pp = fixed.coefficients.get(key, {})
         if not any(any(pe) and x for pe, x in pp.items()):
             continue
         name = f"c[{key[0]},{key[1]}]"
         depending.append(name)
-        rows: Dict[tuple, Row] = {}
+        if basis.rank >= n:
+            continue
+        rows: Dict[tuple, Dict[int, Fraction]] = {}
         for pe, x in pp.items():
             if sum(pe) == 1:
                 col = pe.index(1)
                 for mono, q in x.as_dict().items():
-                    rows.setdefault(mono, [Fraction(0)] * n)[col] += q
-        if len(basis) < n:
-            trial = basis + [r for r in rows.values() if any(r)]
-            reduced, _ = _rref(trial, n)
-            if len(reduced) > len(basis):
-                suggestions.append(name)
-                basis = reduced
-    reduced, pivots = _rref(basis, n)
+                    row = rows.setdefault(mono, {})
+                    row[col] = row.get(col, Fraction(0)) + q
+        new = [r for r in rows.values() if any(r.values()) and basis.add(r)]
+        if new:
+            suggestions.append(name)
+            kept.extend(new)
+    echelon = Echelon(n + 1)
+    echelon.add(kept)
     fixable = set()
-    for row, col in zip(reduced, pivots):
-        if all(row[k] == 0 for k in range(n) if k != col):
+    for col, row in echelon.solution_rows():
+        if not any(q for c, q in row.items() if c < n):
             fixable.add(col)
     unfixable = tuple(params[k] for k in range(n) if k not in fixable)
     return tuple(depending), tuple(suggestions), unfixable

@@ -28,7 +28,7 @@ from typing import Dict, Iterable, List, Sequence, Tuple
 
 import flint
 
-__all__ = ["Echelon", "consistent", "SparseRow"]
+__all__ = ["Echelon", "IncrementalBasis", "consistent", "SparseRow"]
 
 SparseRow = Dict[int, object]
 
@@ -63,25 +63,22 @@ class Echelon:
         if not new:
             return
         stack = self.rows + new
-        m = flint.fmpq_mat(len(stack), self.ncols)
+        ncols = self.ncols
+        zero = flint.fmpq(0)
+        flat = [zero] * (len(stack) * ncols)
         for i, r in enumerate(stack):
+            base = i * ncols
             for c, v in r.items():
-                m[i, c] = v
-        reduced, rank = m.rref()
+                flat[base + c] = v
+        reduced, rank = flint.fmpq_mat(len(stack), ncols, flat).rref()
+        entries = reduced.entries()
         rows: List[Dict[int, "flint.fmpq"]] = []
         pivots: List[int] = []
-        zero = flint.fmpq(0)
         for i in range(rank):
-            row = {}
-            first = None
-            for c in range(self.ncols):
-                v = reduced[i, c]
-                if v != zero:
-                    row[c] = v
-                    if first is None:
-                        first = c
+            base = i * ncols
+            row = {c: v for c, v in enumerate(entries[base : base + ncols]) if v != zero}
             rows.append(row)
-            pivots.append(first)
+            pivots.append(min(row))
         self.rows, self.pivots = rows, pivots
 
     @property
@@ -106,3 +103,41 @@ def consistent(rows: Sequence[SparseRow], ncols: int) -> bool:
     e = Echelon(ncols)
     e.add(rows)
     return e.consistent
+
+
+class IncrementalBasis:
+    """A basis of the row space built one row at a time (exact, in Fractions).
+
+    :meth:`add` reduces a sparse row against the rows kept so far and keeps
+    the remainder if it is not zero: a cheap independence test when rows
+    arrive one by one and are short (the greedy choice of pole numerators
+    that would fix the free parameters).
+
+    >>> b = IncrementalBasis()
+    >>> b.add({0: 1, 1: 2}), b.add({0: 2, 1: 4}), b.add({1: 1}), b.rank
+    (True, False, True, 2)
+    """
+
+    def __init__(self) -> None:
+        self.rows: Dict[int, Dict[int, Fraction]] = {}   # pivot column -> row with 1 at the pivot
+
+    @property
+    def rank(self) -> int:
+        return len(self.rows)
+
+    def add(self, row: SparseRow) -> bool:
+        r = {c: Fraction(v) for c, v in row.items() if v}
+        while r:
+            pivot = min(r)
+            if pivot not in self.rows:
+                inv = 1 / r[pivot]
+                self.rows[pivot] = {c: v * inv for c, v in r.items()}
+                return True
+            f = r[pivot]
+            for c, v in self.rows[pivot].items():
+                y = r.get(c, Fraction(0)) - f * v
+                if y:
+                    r[c] = y
+                else:
+                    r.pop(c, None)
+        return False

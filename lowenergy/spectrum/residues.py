@@ -69,6 +69,8 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
 
+import flint
+
 from ..errors import InputError
 from ..integrand.model import Integrand, Poly, Term
 from ..integrand.transform import g_of_one_minus_x
@@ -617,6 +619,124 @@ def _endpoint_poles(
                 _padd(slot, key, value * scale)
 
 
+# Flat rational form of the same computation (the fast path).  MZV elements are
+# canonical polynomials in the generators, so a product of two of them is the
+# concatenation of monomials (``_mono_mul``): working on ``{monomial:
+# Fraction}`` dicts avoids building an MZV object per intermediate product,
+# which dominated the time for ansätze with hundreds of parameters.
+
+FlatPoly = Dict[Tuple[Tuple[int, ...], tuple], Fraction]   # {(exponent key, MZV monomial): q}
+
+
+def _q(x: Fraction) -> "flint.fmpq":
+    """A Fraction as python-flint's fmpq (exact; C arithmetic in the hot loop)."""
+    return flint.fmpq(x.numerator, x.denominator)
+
+
+def _mzv_from_flat(terms: Dict[tuple, "flint.fmpq"]) -> MZV:
+    """An MZV from canonical monomials (products via ``_mono_mul`` are sorted) and fmpq values."""
+    out = MZV.__new__(MZV)
+    out._terms = {m: Fraction(int(q.p), int(q.q)) for m, q in terms.items() if q}
+    out._hash = None
+    return out
+
+
+def _endpoint_poles_flat(
+    coefficient: Poly,
+    near,
+    far,
+    words: Dict[Tuple[int, ...], MZV],
+    levels: int,
+    nvars: int,
+    out: Dict[Tuple[int, Fraction], Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]]],
+    pindex,
+) -> None:
+    """:func:`_endpoint_poles` for ``near.var`` not None (and the other end
+    point's exponent free of it), accumulating flat ``{((power of the other
+    variable, parameter exponents), monomial): Fraction}`` dicts in
+    ``out[(var, location)][order]``."""
+    from ..zeta.element import _mono_mul
+
+    m_values = _m_range(near.shift, near.coeff, levels)
+    if not m_values:
+        return
+    order = m_values[-1]
+    binom = _binomial_series(far.shift, far.coeff, order)
+    # E_{m,k}: {(power of the far variable, monomial): q}
+    expansions: Dict[Tuple[int, int], Dict[Tuple[int, tuple], Fraction]] = {}
+    for u, cu in words.items():
+        cflat = list(cu.as_dict().items())
+        series = g_series_at_zero(u, order)
+        for k, g in series.items():
+            for m in m_values:
+                acc: List[Fraction] = []
+                for mp in range(m + 1):
+                    gc = g[m - mp]
+                    if not gc:
+                        continue
+                    b = binom[mp]
+                    if len(acc) < len(b):
+                        acc.extend([Fraction(0)] * (len(b) - len(acc)))
+                    for power, bc in enumerate(b):
+                        if bc:
+                            acc[power] += bc * gc
+                if not any(acc):
+                    continue
+                slot = expansions.setdefault((m, k), {})
+                for power, value in enumerate(acc):
+                    if not value:
+                        continue
+                    if far.var is None and power:
+                        raise AssertionError("binomial series without variable has degree 0")
+                    for mono, q in cflat:
+                        key = (power, mono)
+                        slot[key] = slot.get(key, Fraction(0)) + value * q
+    c = near.coeff
+    v = near.var
+    o = 1 - v
+    # keys inside: (power of the other variable, index of the parameter
+    # exponents): for ansätze with hundreds of parameters the exponent tuples
+    # are long, and hashing them per product would cost that length each time
+    coef_flat = [(key[v], key[o], pindex(tuple(key[2:])), [(m, _q(q)) for m, q in x.as_dict().items()])
+                 for key, x in coefficient.items() if x]
+    shifted: Dict[Fraction, Dict[int, List[Tuple[Tuple[int, ...], tuple, Fraction]]]] = {}
+    for (m, k), poly in expansions.items():
+        poly = {key: _q(q) for key, q in poly.items() if q}
+        if not poly:
+            continue
+        p = Fraction(-(near.shift + m + 1)) / c
+        if abs(p) > levels:
+            continue
+        if p not in shifted:
+            # Taylor coefficients of the coefficient around near = p: {r: [(rest key, mono, q)]}
+            by_r: Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]] = {}
+            for e, fe, pkey, flat in coef_flat:
+                rest = (fe, pkey)
+                for r in range(e + 1):
+                    factor = math.comb(e, r) * p ** (e - r)
+                    if not factor:
+                        continue
+                    factor = _q(factor)
+                    slot = by_r.setdefault(r, {})
+                    for mono, q in flat:
+                        kk = (rest, mono)
+                        slot[kk] = slot[kk] + q * factor if kk in slot else q * factor
+            shifted[p] = {r: [(kk[0], kk[1], q) for kk, q in d.items() if q] for r, d in by_r.items()}
+        scale = _q(Fraction((-1) ** k) / c ** (k + 1))
+        for r, entries in shifted[p].items():
+            j = k + 1 - r
+            if j < 1:
+                continue
+            target = out.setdefault((v, p), {}).setdefault(j, {})
+            for (power, monob), qb in poly.items():
+                qb = qb * scale
+                for rest, monoa, qa in entries:
+                    key = (rest[0] + power, rest[1]) if power else rest
+                    mono = _mono_mul(monoa, monob) if monoa and monob else (monoa or monob)
+                    kk = (key, mono)
+                    target[kk] = target[kk] + qa * qb if kk in target else qa * qb
+
+
 def residues(integrand: Integrand, levels: int, *, store: TableStore | None = None) -> ResidueTable:
     """Exact pole parts of ``∫_0^1 (integrand) dx`` at ``s = p`` and ``t = p``, ``|p| ≤ levels``.
 
@@ -655,6 +775,24 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
     store = store or default_store()
     nvars = integrand.nvars
     raw: Dict[Tuple[int, Fraction], Dict[int, Poly]] = {}
+    flat: Dict[Tuple[int, Fraction], Dict[int, Dict[Tuple[Tuple[int, ...], tuple], Fraction]]] = {}
+    pkeys: List[Tuple[int, ...]] = []
+    pindices: Dict[Tuple[int, ...], int] = {}
+
+    def pindex(pkey: Tuple[int, ...]) -> int:
+        if pkey not in pindices:
+            pindices[pkey] = len(pkeys)
+            pkeys.append(pkey)
+        return pindices[pkey]
+
+    def endpoint(coefficient, near, far, words):
+        if near.var is None or far.var == near.var:
+            # (the flat path Taylor-shifts only the coefficient, so it needs the
+            # binomial series of the other end point free of the near variable)
+            _endpoint_poles(coefficient, near, far, words, levels, nvars, raw)
+        else:
+            _endpoint_poles_flat(coefficient, near, far, words, levels, nvars, flat, pindex)
+
     for term in integrand.terms:
         term: Term
         if not term.coefficient:
@@ -662,10 +800,10 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
         word = tuple(term.word)
         try:
             # x -> 0
-            _endpoint_poles(term.coefficient, term.x_exp, term.y_exp, {word: MZV.one()}, levels, nvars, raw)
+            endpoint(term.coefficient, term.x_exp, term.y_exp, {word: MZV.one()})
             # x -> 1, after x -> 1 - x: (1-y)^(x_exp) y^(y_exp) G(word; 1-y)
             flipped = g_of_one_minus_x(word, store=store) if word else {(): MZV.one()}
-            _endpoint_poles(term.coefficient, term.y_exp, term.x_exp, flipped, levels, nvars, raw)
+            endpoint(term.coefficient, term.y_exp, term.x_exp, flipped)
         except InputError as err:
             raise err.located(source=integrand.source, line=term.source_line, term=term.text)
     poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]] = {}
@@ -681,6 +819,29 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
                 conv[m] = rp
         if conv:
             poles[(v, p)] = conv
+    for place, orders in flat.items():
+        for j, entries in orders.items():
+            grouped: Dict[Tuple[int, Tuple[int, ...]], Dict[tuple, Fraction]] = {}
+            for (key, mono), q in entries.items():
+                if q:
+                    grouped.setdefault(key, {})[mono] = q
+            for (power, pk), terms in grouped.items():
+                pkey = pkeys[pk]
+                value = _mzv_from_flat(terms)
+                if not value:
+                    continue
+                slot = poles.setdefault(place, {}).setdefault(j, {}).setdefault(power, {})
+                if pkey in slot:
+                    _padd(slot, pkey, value)
+                else:
+                    slot[pkey] = value
+    for place in list(poles):
+        orders = {j: {pw: pp for pw, pp in rp.items() if pp} for j, rp in poles[place].items()}
+        orders = {j: rp for j, rp in orders.items() if rp}
+        if orders:
+            poles[place] = orders
+        else:
+            del poles[place]
     return ResidueTable(
         variables=tuple(integrand.variables),
         parameters=tuple(integrand.parameters),

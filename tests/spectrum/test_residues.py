@@ -366,3 +366,40 @@ def test_table_exports(tmp_path):
     with pytest.raises(InputError):
         table.write(tmp_path / "res.xyz")
     assert table.residue_text(3) == "-1/6*t^3 - t^2 - 11/6*t - 1"
+
+
+def test_flat_fast_path_agrees_with_the_mzv_path():
+    # the flat rational path (used for ansätze with many parameters) against the MZV-object path,
+    # which the tests above compare with closed forms: same pole parts, term by term
+    from fractions import Fraction as Q
+
+    from lowenergy.integrand.model import LinearExponent
+    from lowenergy.integrand.transform import g_of_one_minus_x
+    from lowenergy.spectrum.residues import _endpoint_poles, _endpoint_poles_flat
+    from lowenergy.zeta.element import MZV, zeta
+
+    coefficient = {(0, 0, 1, 0): MZV.one(), (1, 2, 0, 1): zeta(3) * Q(2, 3), (2, 0, 0, 0): zeta(2) + 1}
+    near = LinearExponent(-1, Q(-1), 0)
+    far = LinearExponent(-1, Q(-1), 1)
+    for words in ({(0, 1, 1): MZV.one()}, g_of_one_minus_x((0, 1, 1)), g_of_one_minus_x((1, 0, 0, 1))):
+        slow: dict = {}
+        _endpoint_poles(coefficient, near, far, words, 5, 4, slow)
+        flat: dict = {}
+        pkeys: list = []
+        _endpoint_poles_flat(coefficient, near, far, words, 5, 4, flat, lambda k: pkeys.append(k) or len(pkeys) - 1)
+        fast: dict = {}
+        for place, orders in flat.items():
+            for j, entries in orders.items():
+                grouped: dict = {}
+                for ((power, pk), mono), q in entries.items():
+                    if q:
+                        grouped.setdefault((power, pkeys[pk]), {})[mono] = Q(int(q.p), int(q.q))
+                polys = {key: MZV(t) for key, t in grouped.items() if MZV(t)}
+                if polys:
+                    fast.setdefault(place, {})[j] = polys
+        # the flat path keys by (power of the other variable t, parameter exponents)
+        slow = {p: {j: {(k[1], k[2:]): x for k, x in poly.items() if x} for j, poly in o.items()}
+                for p, o in slow.items()}
+        slow = {p: {j: poly for j, poly in o.items() if poly} for p, o in slow.items()}
+        slow = {p: o for p, o in slow.items() if o}
+        assert fast == slow and fast
