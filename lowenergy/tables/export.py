@@ -331,6 +331,11 @@ def _umask() -> int:
 
 def _atomic_write(path: PathLike, text: str) -> Path:
     """Write ``text`` to ``path`` atomically (temporary file + ``os.replace``)."""
+    return _atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def _atomic_write_bytes(path: PathLike, data: bytes) -> Path:
+    """Write ``data`` to ``path`` atomically (temporary file + ``os.replace``)."""
     target = Path(os.fspath(path))
     directory = target.parent if str(target.parent) else Path(".")
     try:
@@ -338,8 +343,8 @@ def _atomic_write(path: PathLike, text: str) -> Path:
     except OSError as err:
         raise InputError(f"cannot write {target}: {err.strerror}", source=str(target)) from None
     try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            fh.write(text)
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
         os.chmod(tmp, 0o666 & ~_umask())
