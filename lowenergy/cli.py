@@ -442,7 +442,8 @@ def expand(
     else:
         from rich.console import Console
 
-        Console().print(to_terminal(expansion, basis=spec, digits=digits, pi=pi))
+        console = Console()  # width: the terminal's, else COLUMNS, else 80
+        console.print(to_terminal(expansion, basis=spec, digits=digits, pi=pi, width=console.width), crop=False)
     for kind, path in outputs:
         if kind == "csv":
             write_csv(expansion, path, basis=spec, digits=digits)
