@@ -379,9 +379,10 @@ def _expand_with_progress(integrand, order: int):
         # missing tables (own progress display) before the expansion's bar starts
         default_store().ensure(check_order(integrand, order))
     n = max(len(integrand.terms), 1)
+    console = _stderr_console()
     with Progress(
         TextColumn("[bold]expanding[/bold]"), BarColumn(), TextColumn("{task.description}"),
-        TimeElapsedColumn(), transient=True, console=_stderr_console(),
+        TimeElapsedColumn(), transient=True, console=console, disable=not console.is_terminal,
     ) as bar:
         task = bar.add_task("", total=n)
 
@@ -716,12 +717,9 @@ def demo() -> None:
     from .tables import to_terminal
     from .zeta.expression import evaluate
     from .zeta.falphabet import f_to_text
-    from .zeta.table import build_tables, default_store
+    from .zeta.table import default_store
 
-    store = default_store()
-    if store.built_weight() < 12:
-        typer.echo("building MZV tables up to weight 12 (once; cached) ...")
-        build_tables(12, store)
+    default_store().ensure(12)  # built on first use, reported on stderr
     typer.echo("\n1. Canonical MZV reductions (first index on the largest summation variable):")
     for text in ["zeta(2,1)", "zeta(5,3)", "zeta(3,1,3,1)", "pi^8", "zeta(2,2,3,5) - zeta(3,9)"]:
         value = evaluate(text)
