@@ -40,6 +40,11 @@ app = typer.Typer(
     rich_markup_mode=None,
     no_args_is_help=True,
     help="Exact low-energy expansions of worldsheet integrals in multiple zeta values.",
+    epilog="\b\nExit codes (every command; details in COMMAND --help):\n"
+    "  0 success\n  1 a check failed (check, verify, fix)\n"
+    "  2 bad input or unusable file/directory (one line on stderr)\n"
+    "  70 internal error (a bug: please report it)\n"
+    "Missing MZV tables are built on first use and cached.",
 )
 def _plain_argument_help() -> None:
     """Show positional arguments as ``FILE`` in help (typer >= 0.20 writes
@@ -79,12 +84,7 @@ def _main_options(
         False, "--version", is_eager=True, callback=_version_callback, help="Print the version and exit."
     ),
 ) -> None:
-    """Exact low-energy expansions of worldsheet integrals in multiple zeta values.
-
-    Exit codes of every command: 0 success, 1 a check failed (check, verify,
-    fix), 2 bad input, 70 internal error (please report).  Missing MZV tables
-    are built on first use (cached); `lowenergy tables build` builds ahead.
-    """
+    """Exact low-energy expansions of worldsheet integrals in multiple zeta values."""
 
 
 class _TableBuildReporter:
@@ -398,7 +398,7 @@ def _stderr_console():
     return Console(stderr=True)
 
 
-@app.command(epilog=_exit_codes())
+@app.command(epilog=_exit_codes(), short_help="Expand an integrand into exact Wilson coefficients.")
 @user_errors
 def expand(
     file: str = typer.Argument(..., metavar="FILE", help="integrand file (TOML)"),
@@ -491,7 +491,8 @@ def _print_sv_basis(expansion, digits: int, as_json: bool) -> None:
     Console().print(table)
 
 
-@app.command(epilog=_exit_codes("1 series and quadrature disagree"))
+@app.command(epilog=_exit_codes("1 series and quadrature disagree"),
+             short_help="Compare the series with direct quadrature at a point.")
 @user_errors
 def verify(
     file: str = typer.Argument(..., metavar="FILE", help="integrand file (TOML)"),
@@ -560,7 +561,7 @@ def _pole_table(integrand_or_source, sets):
     return compute_residues(integrand_or_source, need)
 
 
-@app.command(epilog=_exit_codes("1 a constraint fails"))
+@app.command(epilog=_exit_codes("1 a constraint fails"), short_help="Check coefficients against a constraint set.")
 @user_errors
 def check(
     source: str = typer.Argument(..., metavar="SOURCE", help="integrand file (TOML) or coefficient table (CSV)"),
@@ -586,7 +587,8 @@ def check(
         raise typer.Exit(1)
 
 
-@app.command(epilog=_exit_codes("1 the constraints are inconsistent"))
+@app.command(epilog=_exit_codes("1 the constraints are inconsistent"),
+             short_help="Fix free rational parameters from exact constraints.")
 @user_errors
 def fix(
     integrand_file: str = typer.Argument(..., metavar="INTEGRAND", help="integrand file with free parameters"),
@@ -629,7 +631,7 @@ def fix(
         raise typer.Exit(1)
 
 
-@app.command(epilog=_exit_codes())
+@app.command(epilog=_exit_codes(), short_help="Exact poles at the massive levels; partial waves.")
 @user_errors
 def residues(
     file: str = typer.Argument(..., metavar="FILE", help="integrand file (TOML)"),
@@ -704,7 +706,7 @@ def residues(
             typer.echo(f"wrote {path}", err=True)
 
 
-@app.command(epilog=_exit_codes())
+@app.command(epilog=_exit_codes(), short_help="A two-minute tour: reductions, an expansion, a check.")
 @user_errors
 def demo() -> None:
     """A two-minute tour: MZV reductions, an expansion, a constraint check."""
