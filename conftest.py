@@ -1,9 +1,9 @@
 """Shared fixtures (at the repository root so that the doctests in lowenergy/ get them too).
 
 The MZV tables are built once per test session into a temporary cache
-directory (weights <= 12 by double shuffle, 13-14 by the coaction route; about
-15 s), so tests never touch the user's cache and always run against tables
-built by the code under test.
+directory, set before collection and removed at the end (weights <= 12 by
+double shuffle, 13-14 by the coaction route; about 15 s), so tests never touch
+the user's cache and always run against tables built by the code under test.
 """
 
 from __future__ import annotations
@@ -16,14 +16,38 @@ import pytest
 TEST_TABLE_WEIGHT = 14
 
 
+_SESSION_CACHE = []
+
+
+def pytest_configure(config):
+    """Point LOWENERGY_CACHE_DIR at a temporary directory *before collection*:
+    test modules that compute MZVs at import time (parametrize lists) would
+    otherwise build tables on demand in the user's own cache."""
+    import tempfile
+
+    path = tempfile.mkdtemp(prefix="lowenergy-test-cache-")
+    _SESSION_CACHE.append(path)
+    os.environ["LOWENERGY_CACHE_DIR"] = path
+
+
+def pytest_unconfigure(config):
+    import shutil
+
+    while _SESSION_CACHE:
+        shutil.rmtree(_SESSION_CACHE.pop(), ignore_errors=True)
+
+
 @pytest.fixture(scope="session", autouse=True)
-def mzv_tables(tmp_path_factory):
+def mzv_tables():
     from lowenergy.zeta.table import build_tables, default_store
 
-    path = tmp_path_factory.mktemp("lowenergy-cache")
-    os.environ["LOWENERGY_CACHE_DIR"] = str(path)
+    assert os.environ["LOWENERGY_CACHE_DIR"] == _SESSION_CACHE[0]
     store = build_tables(TEST_TABLE_WEIGHT)
     assert store is default_store()
+    # A test that needs a weight above 14 gets a TableError rather than a
+    # silent on-demand build of several minutes; tests of on-demand builds
+    # use stores of their own (tests/zeta/test_table_on_demand.py).
+    store.auto_build = False
     yield store
 
 

@@ -2,7 +2,11 @@
 
 Every user error (a :class:`~lowenergy.errors.LowEnergyError`) becomes one
 line on standard error and exit code 2, without a traceback and without a
-partial output file.
+partial output file.  An internal failure (:class:`~lowenergy.errors.InternalError`
+or any other unexpected exception) becomes one line ``internal error: ...
+please report`` and exit code 70 (set ``LOWENERGY_DEBUG=1`` for the
+traceback).  Missing MZV tables are built on first use with a progress bar on
+standard error (one line per weight when standard error is not a terminal).
 """
 
 from __future__ import annotations
@@ -14,16 +18,52 @@ from typing import Optional
 
 import typer
 
-from .errors import LowEnergyError
+from .errors import INTERNAL_EXIT_CODE, InternalError, LowEnergyError
 
-__all__ = ["app", "main"]
+__all__ = ["app", "main", "DEFAULT_DIGITS"]
+
+#: The one default of ``--digits`` (significant digits of numeric values and
+#: comparisons) for every command.
+DEFAULT_DIGITS = 30
+
+
+def _exit_codes(*extra: str) -> str:
+    """The ``Exit codes`` paragraph of a command's help."""
+    lines = ["0 success"] + list(extra) + [
+        "2 bad input or unusable file/directory (one line on stderr)",
+        f"{INTERNAL_EXIT_CODE} internal error (a bug: please report it)",
+    ]
+    return "\b\nExit codes:\n" + "\n".join("  " + line for line in lines)
 
 app = typer.Typer(
     add_completion=False,
+    rich_markup_mode=None,
     no_args_is_help=True,
     help="Exact low-energy expansions of worldsheet integrals in multiple zeta values.",
+    epilog="\b\nExit codes (every command; details in COMMAND --help):\n"
+    "  0 success\n  1 a check failed (check, verify, fix)\n"
+    "  2 bad input or unusable file/directory (one line on stderr)\n"
+    "  70 internal error (a bug: please report it)\n"
+    "Missing MZV tables are built on first use and cached.",
 )
-tables_app = typer.Typer(no_args_is_help=True, help="Build and inspect the cached MZV reduction tables.")
+def _plain_argument_help() -> None:
+    """Show positional arguments as ``FILE`` in help (typer >= 0.20 writes
+    ``{FILE}`` in the usage line and ``FILE <str>`` in the list); the plain
+    help of ``rich_markup_mode=None`` already shows flags as flags."""
+    from typer.core import TyperArgument
+
+    if hasattr(TyperArgument, "display_type_rich"):
+        TyperArgument.display_type_rich = lambda self, ctx: None
+    if hasattr(TyperArgument, "_usage_display_name"):
+        TyperArgument._usage_display_name = lambda self: self.display_name_raw + (
+            "..." if self.nargs != 1 and self.metavar is None else ""
+        )
+
+
+_plain_argument_help()
+
+
+tables_app = typer.Typer(no_args_is_help=True, rich_markup_mode=None, help="Build and inspect the cached MZV reduction tables.")
 app.add_typer(tables_app, name="tables")
 
 
@@ -31,16 +71,113 @@ app.add_typer(tables_app, name="tables")
 EXIT_UNDECIDED = 3
 
 
+def _version_callback(value: bool) -> None:
+    if value:
+        from importlib.metadata import PackageNotFoundError, version
+
+        try:
+            typer.echo(f"lowenergy {version('lowenergy')}")
+        except PackageNotFoundError:  # pragma: no cover - running from a bare checkout
+            typer.echo("lowenergy (version unknown: not installed)")
+        raise typer.Exit()
+
+
+@app.callback()
+def _main_options(
+    version: bool = typer.Option(
+        False, "--version", is_eager=True, callback=_version_callback, help="Print the version and exit."
+    ),
+) -> None:
+    """Exact low-energy expansions of worldsheet integrals in multiple zeta values."""
+
+
+class _TableBuildReporter:
+    """Shows on-demand MZV table builds on stderr: a progress bar on a
+    terminal, otherwise one line per weight."""
+
+    def __init__(self) -> None:
+        self.bar = None
+        self.task = None
+        self.started = 0.0
+        self.last = 0.0
+
+    def __call__(self, weight: int, target: int, message: str) -> None:
+        import time
+
+        console = _stderr_console()
+        if message == "start":
+            from .zeta.table import cache_dir
+
+            self.started = self.last = time.perf_counter()
+            if console.is_terminal:
+                from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
+
+                self.bar = Progress(
+                    TextColumn("[bold]building MZV tables[/bold] (once; cached)"), BarColumn(),
+                    TextColumn("weight {task.fields[weight]}/{task.total:.0f}"), TextColumn("{task.description}"),
+                    TimeElapsedColumn(), console=console, transient=True,
+                )
+                self.bar.start()
+                self.task = self.bar.add_task("", total=target, completed=weight - 1, weight=weight)
+            else:
+                typer.echo(f"building MZV tables of weights {weight}-{target} in {cache_dir()} (once; cached)", err=True)
+        elif message == "done":
+            now = time.perf_counter()
+            if self.bar is not None:
+                self.bar.update(self.task, completed=weight, weight=min(weight + 1, target), description="")
+            else:
+                typer.echo(f"  MZV tables: weight {weight}/{target} done ({now - self.last:.1f} s)", err=True)
+            self.last = now
+        elif message == "finished":
+            self.close()
+            typer.echo(
+                f"MZV tables up to weight {target} ready ({time.perf_counter() - self.started:.1f} s)", err=True
+            )
+        elif self.bar is not None:
+            self.bar.update(self.task, description=message[:40])
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.stop()
+            self.bar = None
+
+
 def user_errors(func):
-    """Map LowEnergyError to one message and exit code 2."""
+    """Map LowEnergyError to one message and exit code 2, internal failures
+    to ``internal error ... please report`` and exit code 70; report
+    on-demand MZV table builds on stderr while the command runs."""
 
     @functools.wraps(func)
     def wrapper(*args, **kwargs):
+        import os
+
+        import click
+
+        from .zeta.table import build_progress
+
+        reporter = _TableBuildReporter()
         try:
-            return func(*args, **kwargs)
+            with build_progress(reporter):
+                return func(*args, **kwargs)
         except LowEnergyError as err:
+            reporter.close()
             typer.echo(f"error: {err}", err=True)
             raise typer.Exit(2)
+        except (typer.Exit, typer.Abort, click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
+            raise
+        except Exception as err:  # an InternalError or a bug: never dressed as a user error
+            reporter.close()
+            if os.environ.get("LOWENERGY_DEBUG"):
+                raise
+            what = str(err) if isinstance(err, InternalError) else f"{type(err).__name__}: {err}"
+            typer.echo(
+                f"internal error: {what}; this is a bug in lowenergy, please report it with the command you ran "
+                "(LOWENERGY_DEBUG=1 shows the traceback)",
+                err=True,
+            )
+            raise typer.Exit(INTERNAL_EXIT_CODE)
+        finally:
+            reporter.close()
 
     return wrapper
 
@@ -78,6 +215,30 @@ def _expression_text(argument: str):
     return text, source
 
 
+def _check_output(path: Optional[str], option: str) -> None:
+    """Refuse an output path that cannot be written, before any computation."""
+    import os
+    from pathlib import Path
+
+    from .errors import InputError
+
+    if not path:
+        return
+    target = Path(path)
+    parent = target.parent if str(target.parent) else Path(".")
+    reason = None
+    if target.is_dir():
+        reason = "it is a directory"
+    elif not parent.is_dir():
+        reason = f"the directory {parent} does not exist" if not parent.exists() else f"{parent} is not a directory"
+    elif not os.access(parent, os.W_OK | os.X_OK):
+        reason = f"the directory {parent} is not writable"
+    elif target.exists() and not os.access(target, os.W_OK):
+        reason = "the file is not writable"
+    if reason:
+        raise InputError(f"cannot write {option} {path}: {reason}", hint=f"choose another path for {option}")
+
+
 def _check_digits(digits: int) -> None:
     from .errors import InputError
 
@@ -85,17 +246,18 @@ def _check_digits(digits: int) -> None:
         raise InputError(f"--digits must be between 1 and 10000, got {digits}")
 
 
-@app.command()
+@app.command(epilog=_exit_codes())
 @user_errors
 def reduce(
     expression: str = typer.Argument(
-        ..., help="e.g. 'zeta(5,3) + zeta(3,5)' or 'pi^4/90'; '-' reads standard input, '@FILE' a file"
+        ..., metavar="EXPRESSION",
+        help="e.g. 'zeta(5,3) + zeta(3,5)' or 'pi^4/90'; '-' reads standard input, '@FILE' a file",
     ),
-    basis: str = typer.Option("conventional", "--basis", help="'conventional' (ζ-monomials) or 'f' (f-alphabet)"),
-    digits: int = typer.Option(30, "--digits", help="significant digits of the numeric value"),
+    basis: str = typer.Option("conventional", "--basis", metavar="NAME", help="'conventional' (ζ-monomials) or 'f' (f-alphabet)"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numeric value"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
     regularize: Optional[str] = typer.Option(
-        None, "--regularize", help="'shuffle' or 'stuffle': allow divergent zeta(1,...)"
+        None, "--regularize", metavar="NAME", help="'shuffle' or 'stuffle': allow divergent zeta(1,...)"
     ),
     pi: bool = typer.Option(False, "--pi", help="show powers of ζ(2) as powers of π"),
 ) -> None:
@@ -133,25 +295,26 @@ def reduce(
     typer.echo(f"≈ {numeric}")
 
 
-@tables_app.command("build")
+@tables_app.command("build", epilog=_exit_codes())
 @user_errors
 def tables_build(
-    weight: int = typer.Option(12, "--weight", help="build all weights up to this one"),
+    weight: int = typer.Option(12, "--weight", metavar="W", help="build all weights up to this one (2-18)"),
     rebuild: bool = typer.Option(False, "--rebuild", help="recompute weights already cached"),
     method: str = typer.Option(
-        "auto", "--method", help="auto (double shuffle to 12, coaction above) | double-shuffle | motivic"
+        "auto", "--method", metavar="NAME", help="auto (double shuffle to 12, coaction above) | double-shuffle | motivic"
     ),
     rows: bool = typer.Option(True, "--rows/--no-rows", help="also cache the word values the expansion engine uses"),
 ) -> None:
-    """Build the MZV reduction tables (cached in the user's cache directory)."""
+    """Build the MZV reduction tables ahead of time (commands build missing ones on first use)."""
     from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
 
     from .errors import InputError
-    from .zeta.table import build_tables, default_store
+    from .zeta.table import MAX_WEIGHT, build_tables, default_store
 
-    if weight < 2 or weight > 18:
-        raise InputError(f"--weight must be between 2 and 18, got {weight}")
+    if weight < 2 or weight > MAX_WEIGHT:
+        raise InputError(f"--weight must be between 2 and {MAX_WEIGHT}, got {weight}")
     store = default_store()
+    store.check_writable()
     with Progress(
         TextColumn("[bold]MZV tables[/bold]"),
         BarColumn(),
@@ -159,6 +322,7 @@ def tables_build(
         TextColumn("{task.description}"),
         TimeElapsedColumn(),
         transient=False,
+        console=_stderr_console(),
     ) as bar:
         task = bar.add_task("", total=weight, completed=1)
 
@@ -178,7 +342,7 @@ def tables_build(
     typer.echo(f"tables up to weight {weight} in {store.directory}")
 
 
-@tables_app.command("info")
+@tables_app.command("info", epilog=_exit_codes())
 @user_errors
 def tables_info() -> None:
     """Show which weights are built, their dimensions and generators."""
@@ -188,7 +352,7 @@ def tables_info() -> None:
     built = store.built_weight()
     typer.echo(f"directory: {store.directory}")
     if built < 2:
-        typer.echo("no tables built yet; run `lowenergy tables build --weight 12`")
+        typer.echo("no tables built yet (commands build them on first use; `lowenergy tables build --weight 12` builds ahead)")
         return
     for w in range(2, built + 1):
         gens = ", ".join("ζ(" + ",".join(map(str, g)) + ")" for g in store.generators(w))
@@ -246,14 +410,20 @@ def _basis_spec(basis: str, user_basis: list):
 def _expand_with_progress(integrand, order: int):
     from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
 
-    from .expansion.engine import expand
+    from .expansion.engine import check_order, expand
+    from .zeta.table import default_store
 
     if getattr(integrand, "domain", "interval") == "sphere":
         from .svpolylog.sphere import expand_sphere as expand
+    else:
+        # refuse an order beyond the buildable tables up front, then build the
+        # missing tables (own progress display) before the expansion's bar starts
+        default_store().ensure(check_order(integrand, order))
     n = max(len(integrand.terms), 1)
+    console = _stderr_console()
     with Progress(
         TextColumn("[bold]expanding[/bold]"), BarColumn(), TextColumn("{task.description}"),
-        TimeElapsedColumn(), transient=True, console=_stderr_console(),
+        TimeElapsedColumn(), transient=True, console=console, disable=not console.is_terminal,
     ) as bar:
         task = bar.add_task("", total=n)
 
@@ -269,17 +439,17 @@ def _stderr_console():
     return Console(stderr=True)
 
 
-@app.command()
+@app.command(epilog=_exit_codes(), short_help="Expand an integrand into exact Wilson coefficients.")
 @user_errors
 def expand(
-    file: str = typer.Argument(..., help="integrand file (TOML)"),
-    order: int = typer.Option(..., "--order", help="keep every s^i t^j with i + j <= ORDER"),
-    csv: Optional[str] = typer.Option(None, "--csv", help="write the table as CSV (lossless)"),
-    latex: Optional[str] = typer.Option(None, "--latex", help="write a LaTeX tabular"),
+    file: str = typer.Argument(..., metavar="FILE", help="integrand file (TOML)"),
+    order: int = typer.Option(..., "--order", metavar="N", help="keep every s^i t^j with i + j <= N"),
+    csv: Optional[str] = typer.Option(None, "--csv", metavar="FILE", help="write the table as CSV (lossless)"),
+    latex: Optional[str] = typer.Option(None, "--latex", metavar="FILE", help="write a LaTeX tabular"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
-    basis: str = typer.Option("monomial", "--basis", help="monomial | symmetric | sigma | sv (single-valued generators)"),
-    user_basis: Optional[list[str]] = typer.Option(None, "--user-basis", help="NAME=POLY in s,t (repeat)"),
-    digits: int = typer.Option(20, "--digits", help="digits of the numeric column"),
+    basis: str = typer.Option("monomial", "--basis", metavar="NAME", help="monomial | symmetric | sigma | sv (single-valued generators)"),
+    user_basis: Optional[list[str]] = typer.Option(None, "--user-basis", metavar="NAME=POLY", help="a basis element, a polynomial in s, t (repeat)"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numeric column (the terminal table shows fewer when it must fit)"),
     pi: bool = typer.Option(False, "--pi", help="LaTeX/terminal: powers of ζ(2) as powers of π"),
 ) -> None:
     """Expand an integrand at low energy into exact Wilson coefficients."""
@@ -288,12 +458,14 @@ def expand(
     from .tables import to_csv_text, to_json_dict, to_latex, to_terminal, write_csv, write_latex
 
     _check_digits(digits)
-    if order < 0 or order > 60:
-        raise InputError(f"--order must be between 0 and 60, got {order}")
+    if order < 0:
+        raise InputError(f"--order must be a non-negative integer, got {order}")
     spec = _basis_spec(basis, user_basis or [])
     if spec == "sv" and (csv or latex):
         raise InputError("--basis sv is shown on the terminal and in --json only",
                          hint="CSV and LaTeX keep the conventional MZV basis (lossless); drop --basis sv for them")
+    _check_output(csv, "--csv")
+    _check_output(latex, "--latex")
     integrand = read_integrand(file)
     expansion = _expand_with_progress(integrand, order)
     if spec == "sv":
@@ -312,7 +484,8 @@ def expand(
     else:
         from rich.console import Console
 
-        Console().print(to_terminal(expansion, basis=spec, digits=digits, pi=pi))
+        console = Console()  # width: the terminal's, else COLUMNS, else 80
+        console.print(to_terminal(expansion, basis=spec, digits=digits, pi=pi, width=console.width), crop=False)
     for kind, path in outputs:
         if kind == "csv":
             write_csv(expansion, path, basis=spec, digits=digits)
@@ -359,13 +532,14 @@ def _print_sv_basis(expansion, digits: int, as_json: bool) -> None:
     Console().print(table)
 
 
-@app.command()
+@app.command(epilog=_exit_codes("1 series and quadrature disagree"),
+             short_help="Compare the series with direct quadrature at a point.")
 @user_errors
 def verify(
-    file: str = typer.Argument(..., help="integrand file (TOML)"),
-    at: str = typer.Option(..., "--at", help="the point, e.g. s=-0.1,t=-0.07 (and parameters)"),
-    order: int = typer.Option(8, "--order", help="order of the series compared"),
-    digits: int = typer.Option(30, "--digits", help="working digits of the quadrature"),
+    file: str = typer.Argument(..., metavar="FILE", help="integrand file (TOML)"),
+    at: str = typer.Option(..., "--at", metavar="POINT", help="the point, e.g. s=-0.1,t=-0.07 (and parameters)"),
+    order: int = typer.Option(8, "--order", metavar="N", help="order of the series compared"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="working digits of the quadrature and the series"),
 ) -> None:
     """Compare the truncated series with direct (continued) quadrature at a point."""
     from .errors import InputError
@@ -373,8 +547,8 @@ def verify(
     from .integrand.reader import read_integrand
 
     _check_digits(digits)
-    if order < 0 or order > 60:
-        raise InputError(f"--order must be between 0 and 60, got {order}")
+    if order < 0:
+        raise InputError(f"--order must be a non-negative integer, got {order}")
     point = _parse_point(at)
     integrand = read_integrand(file)
     expansion = _expand_with_progress(integrand, order)
@@ -428,13 +602,13 @@ def _pole_table(integrand_or_source, sets):
     return compute_residues(integrand_or_source, need)
 
 
-@app.command()
+@app.command(epilog=_exit_codes("1 a constraint fails"), short_help="Check coefficients against a constraint set.")
 @user_errors
 def check(
-    source: str = typer.Argument(..., help="integrand file (TOML) or coefficient table (CSV)"),
+    source: str = typer.Argument(..., metavar="SOURCE", help="integrand file (TOML) or coefficient table (CSV)"),
     constraints_file: str = typer.Argument(..., metavar="CONSTRAINTS", help="constraint file (TOML)"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
-    digits: int = typer.Option(30, "--digits", help="digits of numeric comparisons"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of numeric comparisons"),
     verbose: bool = typer.Option(False, "--verbose", help="show left and right sides in full"),
 ) -> None:
     """Check coefficients against a constraint set.
@@ -477,13 +651,14 @@ def _refuse_existing(path: str, input_file: str) -> None:
     )
 
 
-@app.command()
+@app.command(epilog=_exit_codes("1 the constraints are inconsistent"),
+             short_help="Fix free rational parameters from exact constraints.")
 @user_errors
 def fix(
     integrand_file: str = typer.Argument(..., metavar="INTEGRAND", help="integrand file with free parameters"),
     constraints_files: list[str] = typer.Argument(..., metavar="CONSTRAINTS...",
                                                   help="one or more constraint files (TOML), solved together"),
-    write: Optional[str] = typer.Option(None, "--write", help="write the fixed integrand file here (a new file)"),
+    write: Optional[str] = typer.Option(None, "--write", metavar="FILE", help="write the fixed integrand file here (a new file)"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
     force: bool = typer.Option(False, "--force", help="let --write replace an existing file (even the input)"),
 ) -> None:
@@ -542,23 +717,23 @@ def _negativity_line(table) -> str:
     return text
 
 
-@app.command()
+@app.command(epilog=_exit_codes(), short_help="Exact poles at the massive levels; partial waves.")
 @user_errors
 def residues(
-    file: str = typer.Argument(..., help="integrand file (TOML)"),
-    levels: int = typer.Option(..., "--levels", help="poles at s = n and t = n for |n| <= LEVELS"),
+    file: str = typer.Argument(..., metavar="FILE", help="integrand file (TOML)"),
+    levels: int = typer.Option(..., "--levels", metavar="N", help="poles at s = n and t = n for 1 <= n <= N"),
     waves: bool = typer.Option(False, "--waves", help="Gegenbauer partial waves of the simple poles in s"),
-    dim: str = typer.Option("10", "--dim", help="space-time dimension D for --waves (rational)"),
-    sign: int = typer.Option(1, "--sign", help="+1: decompose Res, -1: decompose -Res (see README)"),
-    csv: Optional[str] = typer.Option(None, "--csv", help="write the residue (or wave) table as CSV"),
+    dim: str = typer.Option("10", "--dim", metavar="D", help="space-time dimension for --waves (rational)"),
+    sign: int = typer.Option(1, "--sign", metavar="±1", help="+1: decompose Res, -1: decompose -Res (see README)"),
+    csv: Optional[str] = typer.Option(None, "--csv", metavar="FILE", help="write the residue (or wave) table as CSV"),
     as_json: bool = typer.Option(False, "--json", help="print the rows as JSON"),
-    plot: Optional[str] = typer.Option(None, "--plot", help="with --waves: spectrum plot (PNG)"),
+    plot: Optional[str] = typer.Option(None, "--plot", metavar="FILE", help="with --waves: spectrum plot (PNG; needs matplotlib)"),
     divide_by: Optional[str] = typer.Option(
-        None, "--divide-by", help="poles in s of I/f(t) for a polynomial f in t, e.g. '-t'"
+        None, "--divide-by", metavar="POLY", help="poles in s of I/f(t) for a polynomial f in t, e.g. '-t'"
     ),
-    digits: int = typer.Option(15, "--digits", help="digits of the numeric column"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numeric column"),
     at: Optional[str] = typer.Option(
-        None, "--at", help="values of the free parameters, e.g. a1=1,a2=-1/2 (signs of --waves then decided)"
+        None, "--at", metavar="VALUES", help="values of the free parameters, e.g. a1=1,a2=-1/2 (signs of --waves then decided)"
     ),
 ) -> None:
     """Exact pole coefficients at the massive levels (and partial waves)."""
@@ -579,6 +754,12 @@ def residues(
         raise InputError("--sign must be 1 or -1")
     if plot and not waves:
         raise InputError("--plot needs --waves")
+    _check_output(csv, "--csv")
+    _check_output(plot, "--plot")
+    if plot:
+        from .spectrum.plots import require_matplotlib
+
+        require_matplotlib()
     integrand = read_integrand(file)
     if at:
         from .constraints import substitute
@@ -617,7 +798,7 @@ def residues(
             typer.echo(f"wrote {path}", err=True)
 
 
-@app.command()
+@app.command(epilog=_exit_codes(), short_help="A two-minute tour: reductions, an expansion, a check.")
 @user_errors
 def demo() -> None:
     """A two-minute tour: MZV reductions, an expansion, a constraint check."""
@@ -630,12 +811,9 @@ def demo() -> None:
     from .tables import to_terminal
     from .zeta.expression import evaluate
     from .zeta.falphabet import f_to_text
-    from .zeta.table import build_tables, default_store
+    from .zeta.table import default_store
 
-    store = default_store()
-    if store.built_weight() < 12:
-        typer.echo("building MZV tables up to weight 12 (once; cached) ...")
-        build_tables(12, store)
+    default_store().ensure(12)  # built on first use, reported on stderr
     typer.echo("\n1. Canonical MZV reductions (first index on the largest summation variable):")
     # each line must say something: an input that is already canonical would
     # print as "x = x", which is no identity, so it is labelled instead

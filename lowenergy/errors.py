@@ -2,7 +2,13 @@
 
 Every error a user can cause derives from :class:`LowEnergyError`.  The
 command line maps these (and only these) to a one-line message and exit
-code 2; anything else escaping is a bug.
+code 2.
+
+A failure of the package itself (an inconsistent table, an exact
+reconstruction that did not converge, a broken invariant) is an
+:class:`InternalError`: it is *not* a :class:`LowEnergyError`, carries no
+hint for the user, and the command line shows it as ``internal error: ...
+please report`` with exit code :data:`INTERNAL_EXIT_CODE` (70).
 """
 
 from __future__ import annotations
@@ -14,7 +20,13 @@ __all__ = [
     "TableError",
     "NumericError",
     "InputError",
+    "InternalError",
+    "INTERNAL_EXIT_CODE",
 ]
+
+#: Exit code of the command line for an :class:`InternalError` (or any other
+#: unexpected failure); 70 is ``EX_SOFTWARE`` of BSD ``sysexits.h``.
+INTERNAL_EXIT_CODE = 70
 
 
 class LowEnergyError(Exception):
@@ -94,3 +106,13 @@ class TableError(LowEnergyError):
 
 class NumericError(LowEnergyError):
     """A numerical evaluation could not reach the requested accuracy."""
+
+
+class InternalError(Exception):
+    """A failure of lowenergy itself, not of its input: please report it.
+
+    Raised when a check the package makes on its own results fails (an MZV
+    table inconsistent with itself, an exact reconstruction that did not
+    converge).  Deliberately not a :class:`LowEnergyError`: there is nothing
+    the user can change in the input to avoid it.
+    """

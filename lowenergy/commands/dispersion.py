@@ -13,21 +13,21 @@ from typing import Optional
 
 import typer
 
-from ..cli import app, user_errors
+from ..cli import DEFAULT_DIGITS, _exit_codes, app, user_errors
 
 __all__ = ["dispersion"]
 
 
-@app.command()
+@app.command(epilog=_exit_codes("1 a rebuilt coefficient disagrees with the exact one"))
 @user_errors
 def dispersion(
     file: str = typer.Argument(..., help="integrand file (TOML)"),
-    order: int = typer.Option(4, "--order", help="rebuild every v^k w^j with 1 <= k, k + j <= ORDER"),
-    levels: int = typer.Option(40, "--levels", help="pole locations summed before the tail is extrapolated"),
-    var: str = typer.Option("s", "--var", help="the pole variable v of the dispersion sums (s or t, by name)"),
-    method: str = typer.Option("auto", "--method", help="tail extrapolation: auto | fit | richardson | none"),
-    digits: int = typer.Option(30, "--digits", help="working digits of the sums"),
-    at: Optional[str] = typer.Option(None, "--at", help="values of the free parameters, e.g. a1=1,a2=-1/2"),
+    order: int = typer.Option(4, "--order", metavar="N", help="rebuild every v^k w^j with 1 <= k, k + j <= ORDER"),
+    levels: int = typer.Option(40, "--levels", metavar="N", help="pole locations summed before the tail is extrapolated"),
+    var: str = typer.Option("s", "--var", metavar="NAME", help="the pole variable v of the dispersion sums (s or t, by name)"),
+    method: str = typer.Option("auto", "--method", metavar="NAME", help="tail extrapolation: auto | fit | richardson | none"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="working digits of the sums"),
+    at: Optional[str] = typer.Option(None, "--at", metavar="VALUES", help="values of the free parameters, e.g. a1=1,a2=-1/2"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
 ) -> None:
     """Rebuild low-energy coefficients as dispersive sums over the residues and compare

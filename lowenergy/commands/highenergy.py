@@ -9,7 +9,7 @@ from typing import List, Optional
 
 import typer
 
-from ..cli import app, user_errors
+from ..cli import DEFAULT_DIGITS, _exit_codes, app, user_errors
 
 _NUMBER = re.compile(r"[+-]?\d+(\.\d+)?(/\d+)?")
 
@@ -54,24 +54,24 @@ def _direction(text: str, variables, saddle) -> Fraction:
     return saddle.saddle_of_direction(point[variables[0]], point[variables[1]])
 
 
-@app.command()
+@app.command(epilog=_exit_codes("1 a relation or consistency check failed"))
 @user_errors
 def highenergy(
     files: List[str] = typer.Argument(..., help="integrand files: order 0 (flat), order 1, order 2, ..."),
-    angles: str = typer.Option("0.1,0.2,0.3,0.4,0.5,0.6,0.7,0.8,0.9", "--angles",
+    angles: str = typer.Option("0.1,0.2,0.3,0.4,0.5,0.6,0.7,0.8,0.9", "--angles", metavar="LIST",
                                help="grid of saddle points x* = s/(s+t), comma-separated, 0 < x* < 1"),
-    direction: Optional[List[str]] = typer.Option(None, "--direction",
+    direction: Optional[List[str]] = typer.Option(None, "--direction", metavar="S=..,T=..",
                                                   help="add the angle of a direction, e.g. s=-1,t=-3 (repeatable)"),
-    relation: Optional[List[str]] = typer.Option(None, "--relation",
+    relation: Optional[List[str]] = typer.Option(None, "--relation", metavar="RELATION",
                                                  help="relation between A1, A2, ... (order k over order 0), "
                                                  "e.g. 'A2 = A1^2/2'; default: A_k = A1^k/k!"),
-    ray: Optional[str] = typer.Option(None, "--ray", help="quadrature on the ray of this x* (validation)"),
-    s_values: str = typer.Option("-10,-20,-50,-100,-200", "--s-values", help="values of s on the ray"),
-    csv: Optional[str] = typer.Option(None, "--csv", help="write the tables as CSV"),
-    json_file: Optional[str] = typer.Option(None, "--json-file", help="write everything as JSON"),
+    ray: Optional[str] = typer.Option(None, "--ray", metavar="X", help="quadrature on the ray of this x* (validation)"),
+    s_values: str = typer.Option("-10,-20,-50,-100,-200", "--s-values", metavar="LIST", help="values of s on the ray"),
+    csv: Optional[str] = typer.Option(None, "--csv", metavar="FILE", help="write the tables as CSV"),
+    json_file: Optional[str] = typer.Option(None, "--json-file", metavar="FILE", help="write everything as JSON"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
-    plot: Optional[str] = typer.Option(None, "--plot", help="PNG: leading terms on the grid (and the ray ratios)"),
-    digits: int = typer.Option(12, "--digits", help="digits of the numbers"),
+    plot: Optional[str] = typer.Option(None, "--plot", metavar="FILE", help="PNG: leading terms on the grid (and the ray ratios)"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numbers"),
 ) -> None:
     """Fixed-angle high energy: exact saddle terms per order, exponentiation check, quadrature on a ray.
 
@@ -151,17 +151,17 @@ def _plot(report, path) -> None:
     fig.savefig(path, format="png", dpi=100)
 
 
-@app.command()
+@app.command(epilog=_exit_codes("1 a consistency check failed"))
 @user_errors
 def shifts(
     files: List[str] = typer.Argument(..., help="integrand files of the orders ε⁰, ε¹ (and ε²)"),
-    levels: int = typer.Option(5, "--levels", help="levels n = 1..LEVELS"),
-    dim: str = typer.Option("10", "--dim", help="space-time dimension D of the partial waves"),
-    csv: Optional[str] = typer.Option(None, "--csv", help="write the table as CSV"),
+    levels: int = typer.Option(5, "--levels", metavar="N", help="levels n = 1..LEVELS"),
+    dim: str = typer.Option("10", "--dim", metavar="D", help="space-time dimension D of the partial waves"),
+    csv: Optional[str] = typer.Option(None, "--csv", metavar="FILE", help="write the table as CSV"),
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
-    plot: Optional[str] = typer.Option(None, "--plot", help="PNG: <delta1> against n on a trajectory"),
-    trajectory: int = typer.Option(0, "--trajectory", help="plot J = J_max(n) - K (0: leading trajectory)"),
-    digits: int = typer.Option(12, "--digits", help="digits of the numbers"),
+    plot: Optional[str] = typer.Option(None, "--plot", metavar="FILE", help="PNG: <delta1> against n on a trajectory"),
+    trajectory: int = typer.Option(0, "--trajectory", metavar="K", help="plot J = J_max(n) - K (0: leading trajectory)"),
+    digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numbers"),
 ) -> None:
     """Mass shifts per level and spin: residue, <delta1>, variance, <delta2>, consistency residuals.
 

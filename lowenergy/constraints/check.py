@@ -28,8 +28,10 @@ monomial has a non-zero coefficient that does not depend on the parameters)
 and ``DEPENDS`` when they might -- :func:`lowenergy.constraints.fix.fix`
 then solves for them.
 
-When a relation contains an MZV of a weight beyond the built MZV tables,
-the constraint is evaluated numerically instead (``mode = "numeric"``; an
+Missing MZV tables are built on first use (:mod:`lowenergy.zeta.table`).
+When a relation contains an MZV of a weight beyond the buildable tables
+(:data:`~lowenergy.zeta.table.MAX_WEIGHT`, single zetas excepted: they never
+need a table), the constraint is evaluated numerically instead (``mode = "numeric"``; an
 exact equality then passes when ``|r| ≤ 10^-(digits-5)·M``, where ``M`` is
 the sum of the absolute values of all terms of ``lhs`` and ``rhs`` before
 cancellation) and the result says so.
@@ -479,7 +481,7 @@ def exact_sides(
     """Exact ``(lhs, rhs)`` of a constraint on a candidate (rhs None if numeric).
 
     Raises :class:`~lowenergy.errors.TableError` when an MZV in the text
-    needs tables that are not built; other errors are located in the file.
+    needs tables beyond the buildable weights; other errors are located in the file.
     """
     ring = _ExactRing(store)
     try:

@@ -46,7 +46,7 @@ from ..zeta.element import MZV, g_value
 from .result import Expansion
 from .values import word_index, word_values
 
-__all__ = ["expand", "raw_series", "endpoint_coefficients_at_one", "moment"]
+__all__ = ["expand", "raw_series", "endpoint_coefficients_at_one", "moment", "required_weight", "check_order"]
 
 Series = Dict[Tuple[int, int], MZV]
 
@@ -292,6 +292,55 @@ def raw_series(
 # whole integrands
 # ---------------------------------------------------------------------------
 
+def required_weight(integrand: Integrand, order: int) -> int:
+    """Highest MZV weight the expansion of ``integrand`` to ``order`` needs.
+
+    Mirrors :func:`raw_series`: the regular part at total degree ``m + n``
+    needs the words of length ``m + n + len(w)`` (one more, ``G(0u; 1)`` and
+    ``G(1u; 1)``, when there is an endpoint pole), and the pole part needs the
+    endpoint values ``G(w; 1)``.
+    """
+    need = 0
+    for term in integrand.terms:
+        if not term.coefficient:
+            continue
+        raw_order = order - min(k[0] + k[1] for k in term.coefficient)
+        n = len(term.word)
+        if raw_order < -(n + 1):
+            continue
+        need = max(need, n)
+        a, b = term.x_exp.shift + 1, term.y_exp.shift + 1
+        if a < 0 or b < 0:
+            continue  # refused by raw_series with its own message
+        top = raw_order if (term.x_exp.var is not None or term.y_exp.var is not None) else 0
+        if top >= 0:
+            need = max(need, top + n + (1 if (a == 0 or b == 0) else 0))
+    return need
+
+
+def check_order(integrand: Integrand, order: int) -> int:
+    """The weight :func:`required_weight` gives, after checking that MZV
+    tables of that weight can be built (:data:`~lowenergy.zeta.table.MAX_WEIGHT`);
+    :class:`~lowenergy.errors.InputError` naming the limit and the highest
+    order that works otherwise."""
+    from ..zeta.table import MAX_WEIGHT
+
+    if not isinstance(order, int) or isinstance(order, bool) or order < 0:
+        raise InputError(f"the order must be a non-negative integer, got {order!r}")
+    need = required_weight(integrand, order)
+    if need <= MAX_WEIGHT:
+        return need
+    best = order - (need - MAX_WEIGHT)
+    while best >= 0 and required_weight(integrand, best) > MAX_WEIGHT:
+        best -= 1
+    hint = f"ask for order {best} or lower" if best >= 0 else "this integrand needs shorter words"
+    raise InputError(
+        f"order {order} needs MZV tables of weight {need}, but lowenergy builds them up to weight {MAX_WEIGHT} only",
+        source=integrand.source,
+        hint=hint,
+    )
+
+
 def expand(
     integrand: Integrand,
     order: int,
@@ -311,14 +360,22 @@ def expand(
     Returns
     -------
     Expansion
+
+    Missing MZV tables are built first (see :mod:`lowenergy.zeta.table` for
+    how builds are reported); an order that needs a weight above
+    :data:`~lowenergy.zeta.table.MAX_WEIGHT` raises
+    :class:`~lowenergy.errors.InputError` before any work.
     """
-    if not isinstance(order, int) or order < 0:
-        raise InputError(f"the order must be a non-negative integer, got {order!r}")
     if getattr(integrand, "domain", "interval") != "interval":
         raise InputError(
             f"{integrand.source} is a {integrand.domain} integrand; this engine expands interval integrands",
             hint="use lowenergy.svpolylog.sphere.expand_sphere (the command line chooses it by itself)",
         )
+    from ..zeta.table import default_store
+
+    # refuse an order beyond the buildable tables before any work, then build
+    # the missing tables in one go (reported as the store's module describes)
+    default_store().ensure(check_order(integrand, order))
     nparams = len(integrand.parameters)
     result: Dict[Tuple[int, int], Dict[Tuple[int, ...], MZV]] = {}
     terms: List[Term] = list(integrand.terms)

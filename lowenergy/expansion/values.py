@@ -216,7 +216,7 @@ class ModularWordValues:
     def combine(self, coeffs: Dict[int, int]) -> MZV:
         import numpy as np
 
-        from ..errors import LowEnergyError
+        from ..errors import InternalError
         from ..zeta.motivic import SMALL_PRIMES
         from ..zeta.reduction import _rational_reconstruct
 
@@ -257,7 +257,7 @@ class ModularWordValues:
             if ok and previous == coords:
                 return MZV({mono: c for mono, c in zip(self.basis, coords) if c})
             previous = coords if ok else None
-        raise LowEnergyError(
+        raise InternalError(
             f"exact reconstruction of a weight-{self.weight} coefficient failed with {len(SMALL_PRIMES)} primes"
         )
 

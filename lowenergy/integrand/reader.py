@@ -187,7 +187,7 @@ def read_integrand(path, *, store: TableStore | None = None) -> Integrand:
     wrong types and unsupported integrands, :class:`~lowenergy.errors.ParseError`
     for malformed TOML or expressions,
     :class:`~lowenergy.errors.RegularizationError` for divergent MZVs and
-    :class:`~lowenergy.errors.TableError` when the MZV tables are too small.
+    :class:`~lowenergy.errors.TableError` when an MZV weight beyond the buildable tables is needed.
     """
     source, raw = tomlpos.read_file(path, "an integrand file", MAX_FILE_SIZE)
     return integrand_from_text(raw, source=source, store=store)

@@ -90,8 +90,8 @@ def g_of_one_minus_x(word, store: TableStore | None = None) -> Dict[Word, MZV]:
         A sequence of letters 0 and 1.
     store:
         MZV table store (default: the user's cache).  Words of length ``n``
-        need the tables up to weight ``n`` (:class:`~lowenergy.errors.TableError`
-        otherwise).
+        need the tables up to weight ``n`` (built on first use;
+        :class:`~lowenergy.errors.TableError` beyond the buildable weights).
 
     The result maps words (prefixes of the flipped word) to exact
     :class:`~lowenergy.zeta.element.MZV` coefficients; see the module
@@ -122,11 +122,11 @@ def _needed_weight(word: Word) -> int:
 
 
 def require_weight(weight: int, store: TableStore) -> None:
-    """Raise the store's :class:`~lowenergy.errors.TableError` unless the
-    tables reach ``weight``.
+    """Make the tables reach ``weight`` (built on demand, see
+    :mod:`lowenergy.zeta.table`); the store's :class:`~lowenergy.errors.TableError`
+    when they cannot.
 
     Checked *before* regularizing long words, whose shuffle regularization
     is expensive (minutes at length 16) and pointless without the tables.
     """
-    if weight >= 2:
-        store.reduction((weight,))
+    store.ensure(weight)

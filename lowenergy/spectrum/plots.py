@@ -31,7 +31,31 @@ from ..integrand.model import Integrand, LinearExponent
 from ..zeta.element import MZV
 from .partial_waves import PartialWaveTable
 
-__all__ = ["beta_type_amplitude", "evaluate_series", "plot_convergence", "plot_spectrum"]
+__all__ = ["beta_type_amplitude", "evaluate_series", "plot_convergence", "plot_spectrum", "require_matplotlib"]
+
+
+def require_matplotlib() -> None:
+    """:class:`~lowenergy.errors.InputError` (a user error) unless matplotlib
+    can be imported; called by the command line before any computation."""
+    try:
+        import matplotlib  # noqa: F401
+        from matplotlib.backends.backend_agg import FigureCanvasAgg  # noqa: F401
+    except ImportError:
+        raise InputError(
+            "plots need matplotlib, which is not installed",
+            hint="pip install 'lowenergy[plot]' (or matplotlib)",
+        ) from None
+
+
+def _save_png(fig, path) -> Path:
+    """Render to memory, then write atomically: a failure leaves no partial file."""
+    import io
+
+    from ..tables.export import _atomic_write_bytes
+
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=100)
+    return _atomic_write_bytes(path, buf.getvalue())
 
 
 def _mzv_value(x: MZV, digits: int) -> mpmath.mpf:
@@ -140,6 +164,7 @@ def _finite(f) -> float:
 
 
 def _figure(size=(7.0, 5.0)):
+    require_matplotlib()
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
@@ -230,8 +255,7 @@ def plot_convergence(
     ax2.set_ylabel("log10 |series - amplitude|")
     ax2.legend(fontsize=7)
     fig.tight_layout()
-    path = Path(path)
-    fig.savefig(path, format="png", dpi=100)
+    path = _save_png(fig, path)
     return {"lambda": lam, "s": s_arr, "t": t_arr, "amplitude": amp, "series": series,
             "log10_error": err, "orders": orders, "path": path}
 
@@ -278,6 +302,5 @@ def plot_spectrum(table: PartialWaveTable, path, *, title: Optional[str] = None)
     if len(entries):
         ax.legend(fontsize=8, loc="upper left")
     fig.tight_layout()
-    path = Path(path)
-    fig.savefig(path, format="png", dpi=100)
+    path = _save_png(fig, path)
     return {"level": level, "spin": spin, "coefficient": coef, "negative": neg, "path": path}

@@ -91,7 +91,7 @@ import time
 from fractions import Fraction
 from typing import Dict, Iterable, Mapping, Tuple
 
-from ..errors import InputError, TableError
+from ..errors import InputError, InternalError
 from ..words import all_words, regularize_word, shuffle, word_to_indices
 from ..zeta.element import MZV
 from ..zeta.table import TableStore, default_store
@@ -248,7 +248,7 @@ def _solve_y1(z: RawSeries, n: int) -> Tuple[RawSeries, Dict[Word, RawSeries]]:
         if new == y1:
             return y1, prods
         y1 = new
-    raise TableError(f"the fixed-point iteration for y1 did not settle at degree {n}")  # pragma: no cover
+    raise InternalError(f"the fixed-point iteration for y1 did not settle at degree {n}")  # pragma: no cover
 
 
 # --------------------------------------------------------------------------

@@ -54,7 +54,7 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Dict, List, Mapping, Tuple
 
-from ..errors import InputError, TableError
+from ..errors import InputError, InternalError
 from ..words import shuffle
 from ..zeta.element import MZV
 from ..zeta.falphabet import FKey, monomial_falphabet
@@ -115,10 +115,9 @@ def _basis_images(weight: int, store: TableStore):
         gens = store.all_generators(weight)
         monos = monomials_of_weight(gens, weight)
         if len(monos) != store.dimension(weight):
-            raise TableError(
+            raise InternalError(
                 f"weight {weight}: {len(monos)} basis monomials but the table says dimension "
-                f"{store.dimension(weight)}",
-                hint=f"rebuild the tables with `lowenergy tables build --weight {weight} --rebuild`",
+                f"{store.dimension(weight)} (inconsistent MZV tables in {store.directory})"
             )
         hit = (monos, [monomial_falphabet(m, store) for m in monos])
         _BASES[key] = hit
@@ -135,7 +134,7 @@ def falphabet_to_mzv(element: Mapping[FKey, Fraction], store: TableStore | None 
     Solved weight by weight by exact elimination against the images of the
     basis monomials.  The map is an isomorphism onto the whole f-alphabet
     of each weight when the tables are complete (Brown 2012), so an
-    :class:`~lowenergy.errors.TableError` here means an inconsistent table.
+    :class:`~lowenergy.errors.InternalError` here means an inconsistent table.
 
     >>> from lowenergy.zeta.element import zeta
     >>> falphabet_to_mzv({(0, (3, 5)): 1, (0, (5, 3)): 1}) == zeta(3) * zeta(5)
@@ -154,7 +153,7 @@ def falphabet_to_mzv(element: Mapping[FKey, Fraction], store: TableStore | None 
         monos, images = _basis_images(w, store)
         coeffs = _solve(images, part)
         if coeffs is None:
-            raise TableError(f"the f-alphabet element at weight {w} is not in the image of the MZVs")
+            raise InternalError(f"the f-alphabet element at weight {w} is not in the image of the MZVs")
         for m, c in zip(monos, coeffs):
             if c:
                 result[m] = result.get(m, Fraction(0)) + c
@@ -177,7 +176,7 @@ def _solve(columns: List[Dict[FKey, Fraction]], target: Dict[FKey, Fraction]):
     for j in range(n):
         p = next((i for i in range(r, len(rows)) if rows[i][j]), None)
         if p is None:
-            raise TableError("the f-alphabet images of the basis monomials are linearly dependent")
+            raise InternalError("the f-alphabet images of the basis monomials are linearly dependent")
         rows[r], rows[p] = rows[p], rows[r]
         piv = rows[r][j]
         rows[r] = [x / piv for x in rows[r]]

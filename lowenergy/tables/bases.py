@@ -77,7 +77,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Union
 
-from ..errors import InputError
+from ..errors import InputError, InternalError
 from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression, to_text
 from ..zeta.element import MZV
 from ..integrand.model import poly_add
@@ -809,7 +809,7 @@ def decompose_sigma(
     sym = {m: v for m, v in sym.items() if v}
     coeffs_flat, residual = _project([e.polynomial for e in elements], sym)
     if residual:  # pragma: no cover - σ2, σ3 generate all symmetric polynomials
-        raise RuntimeError("internal error: symmetric part not spanned by sigma2, sigma3")
+        raise InternalError("the symmetric part is not spanned by sigma2, sigma3")
     coeffs = {}
     for e, v in zip(elements, coeffs_flat):
         pp = _unflatten(v)

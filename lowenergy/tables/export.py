@@ -331,6 +331,11 @@ def _umask() -> int:
 
 def _atomic_write(path: PathLike, text: str) -> Path:
     """Write ``text`` to ``path`` atomically (temporary file + ``os.replace``)."""
+    return _atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def _atomic_write_bytes(path: PathLike, data: bytes) -> Path:
+    """Write ``data`` to ``path`` atomically (temporary file + ``os.replace``)."""
     target = Path(os.fspath(path))
     directory = target.parent if str(target.parent) else Path(".")
     try:
@@ -338,8 +343,8 @@ def _atomic_write(path: PathLike, text: str) -> Path:
     except OSError as err:
         raise InputError(f"cannot write {target}: {err.strerror}", source=str(target)) from None
     try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            fh.write(text)
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
         os.chmod(tmp, 0o666 & ~_umask())
@@ -1017,29 +1022,152 @@ def write_latex(expansion, path: PathLike, basis: BasisSpec = "monomial", digits
 # --------------------------------------------------------------------------
 
 
-def to_terminal(expansion, basis: BasisSpec = "monomial", digits: int = 20, pi: bool = False):
-    """The table as a :class:`rich.table.Table` (cells are plain text, no markup)."""
+def split_terms(text: str) -> List[str]:
+    """The terms of a canonical plain-text value, each with its sign:
+    ``"2*zeta(5) - zeta(2)*zeta(3)"`` -> ``["2*zeta(5)", "- zeta(2)*zeta(3)"]``.
+
+    Splits only at top-level `` + `` / `` - ``, so a term (a token of the
+    exact value) is never cut.
+
+    >>> split_terms("37/20*zeta(2)^2 - 7*zeta(5) + 4*zeta(2)*zeta(3)")
+    ['37/20*zeta(2)^2', '- 7*zeta(5)', '+ 4*zeta(2)*zeta(3)']
+    """
+    terms: List[str] = []
+    depth = 0
+    start = 0
+    k = 0
+    while k < len(text):
+        ch = text[k]
+        if ch in "([":
+            depth += 1
+        elif ch in ")]":
+            depth -= 1
+        elif depth == 0 and ch == " " and text[k + 1 : k + 3] in ("+ ", "- ") and k > start:
+            terms.append(text[start:k])
+            start = k + 1
+            k += 2
+        k += 1
+    terms.append(text[start:])
+    return [t for t in terms if t]
+
+
+def wrap_terms(text: str, width: int) -> List[str]:
+    """Lines of at most ``width`` characters, broken between terms only (a
+    single term longer than ``width`` gets a line of its own, whole).
+
+    >>> wrap_terms("2/5*zeta(2)^2 - zeta(3)", 16)
+    ['2/5*zeta(2)^2', '- zeta(3)']
+    """
+    lines: List[str] = []
+    for term in split_terms(text):
+        if lines and len(lines[-1]) + 1 + len(term) <= width:
+            lines[-1] += " " + term
+        else:
+            lines.append(term)
+    return lines or [""]
+
+
+def shorten_number(text: str, width: int) -> str:
+    """A decimal string rounded to fewer significant digits so that it fits in
+    ``width`` characters (never cut: at least one significant digit is kept).
+
+    >>> shorten_number("1.64493406684822643647241516665", 8)
+    '1.644934'
+    >>> shorten_number("-0.0000123456789", 9)
+    '-1.235e-5'
+    """
+    if len(text) <= width:
+        return text
+    try:
+        with mpmath.workdps(len(text) + 5):
+            x = mpmath.mpf(text)
+            for k in range(len(text), 0, -1):
+                out = mpmath.nstr(x, k, min_fixed=-4, max_fixed=k + 1)
+                if len(out) <= width:
+                    return out
+    except (ValueError, TypeError):
+        pass
+    return text
+
+
+#: The numeric column is shortened down to this width before the layout
+#: gives up on the table.
+NUMERIC_MIN_WIDTH = 10
+
+
+def to_terminal(expansion, basis: BasisSpec = "monomial", digits: int = 20, pi: bool = False,
+                width: Optional[int] = None):
+    """The table as a rich renderable of at most ``width`` columns (cells are
+    plain text, no markup).
+
+    ``width`` defaults to the terminal's (``COLUMNS``, else 80).  The exact
+    values are never dropped or cut inside a term: when the full table is too
+    wide the numeric column is rounded to fewer digits first (down to
+    :data:`NUMERIC_MIN_WIDTH` characters), then the exact values wrap between
+    terms; when even that does not fit, one block per coefficient is shown
+    instead of a table.
+    """
     from rich.table import Table
     from rich.text import Text
 
+    if width is None:
+        import shutil
+
+        width = shutil.get_terminal_size((80, 24)).columns
     decomposition, rows = table_rows(expansion, basis, digits)
     caption = (
         f"basis: {decomposition.basis}; "
         + ("the contact terms lie in the basis" if decomposition.in_basis else "NOT in the basis: see the remainder rows")
     )
-    table = Table(title=Text(expansion.title or "low-energy expansion"), caption=Text(caption))
-    # identifiers never wrap; the exact value wraps (never cut: it is the result)
-    table.add_column("coefficient", no_wrap=True)
-    table.add_column("kind", no_wrap=True)
-    table.add_column("element", no_wrap=True)
-    if expansion.parameters:
-        table.add_column("parameters", no_wrap=True)
-    table.add_column("weight", justify="right", no_wrap=True)
-    table.add_column("exact", overflow="fold", ratio=3)
-    table.add_column("numeric", justify="right", no_wrap=True, overflow="ellipsis", max_width=digits + 4)
-    for r in rows:
+    title = expansion.title or "low-energy expansion"
+    headers = ["coefficient", "kind", "element"] + (["parameters"] if expansion.parameters else []) + ["weight"]
+    ident = [[r.name, r.kind, r.label] + ([r.param] if expansion.parameters else []) + [str(r.weight)] for r in rows]
+    exact = [r.value.to_text(pi=pi) for r in rows]
+    numeric = [r.numeric for r in rows]
+    id_widths = [max([len(h)] + [len(c[k]) for c in ident]) for k, h in enumerate(headers)]
+    ncols = len(headers) + 2
+    room = width - (3 * ncols + 1) - sum(id_widths)  # for the exact and numeric columns
+    exact_full = max([len("exact")] + [len(x) for x in exact])
+    exact_min = max([len("exact")] + [len(t) for x in exact for t in split_terms(x)])
+    numeric_full = max([len("numeric")] + [len(x) for x in numeric])
+    numeric_min = min(numeric_full, NUMERIC_MIN_WIDTH)
+
+    if exact_full + numeric_min <= room:  # exact on one line, numeric as wide as possible
+        exact_w, numeric_w = exact_full, min(numeric_full, room - exact_full)
+    elif exact_min + numeric_min <= room:  # exact wrapped between terms
+        exact_w, numeric_w = room - numeric_min, numeric_min
+    else:
+        return _terminal_blocks(title, caption, headers, ident, exact, numeric, width)
+
+    table = Table(title=Text(title), caption=Text(caption))
+    for h, w in zip(headers, id_widths):
+        table.add_column(h, no_wrap=True, width=w, justify="right" if h == "weight" else "left")
+    table.add_column("exact", no_wrap=True, width=exact_w)
+    table.add_column("numeric", justify="right", no_wrap=True, width=numeric_w)
+    for r, ids, x, num in zip(rows, ident, exact, numeric):
         style = {"pole": "cyan", "remainder": "yellow"}.get(r.kind, "")
-        cells = [r.name, r.kind, r.label] + ([r.param] if expansion.parameters else [])
-        cells += [str(r.weight), r.value.to_text(pi=pi), r.numeric]
+        cells = ids + ["\n".join(wrap_terms(x, exact_w)), shorten_number(num, numeric_w)]
         table.add_row(*(Text(c) for c in cells), style=style or None)
     return table
+
+
+def _terminal_blocks(title, caption, headers, ident, exact, numeric, width):
+    """One block per coefficient: the identifiers on one line, then the exact
+    value (``= ...``, wrapped between terms) and the numeric value (``≈ ...``)."""
+    from rich.text import Text
+
+    out = Text(no_wrap=True, overflow="ignore")
+    out.append(title + "\n", style="bold")
+    indent = "    "
+    inner = max(width - len(indent) - 2, 1)
+    for ids, x, num in zip(ident, exact, numeric):
+        parts = [ids[0], ids[2]]
+        if len(headers) == 5 and ids[3] != "1":
+            parts.append(f"× {ids[3]}")
+        parts.append(f"{ids[1]}, weight {ids[-1]}")
+        out.append("\n" + "  ".join(parts) + "\n")
+        for k, line in enumerate(wrap_terms(x, inner)):
+            out.append(indent + ("= " if k == 0 else "  ") + line + "\n")
+        out.append(indent + "≈ " + shorten_number(num, inner) + "\n")
+    out.append("\n" + caption)
+    return out

@@ -37,7 +37,7 @@ from typing import Callable, Dict, List, Sequence, Tuple
 
 import numpy as np
 
-from ..errors import LowEnergyError
+from ..errors import InternalError
 from ..words import Indices, admissible_indices, indices_to_word, word_to_indices
 from .falphabet import FKey, monomial_falphabet
 from .reduction import Monomial, WeightTable, _rational_reconstruct, generator_preference, monomials_of_weight
@@ -275,7 +275,7 @@ def reduce_weight_motivic(
             mat = [list(map(int, row)) for row in prod_rows]
             rank = flint.nmod_mat(mat, p).rank() if mat else 0
             if rank != len(prod_nontop):
-                raise LowEnergyError(f"products are dependent at weight {N}: lower tables inconsistent")
+                raise InternalError(f"products are dependent at weight {N}: lower tables inconsistent")
             chosen: List[int] = []
             need = len(nontop) - rank
             for i in candidates:
@@ -287,7 +287,7 @@ def reduce_weight_motivic(
                     mat, rank = trial, r2
                     chosen.append(i)
             if rank != len(nontop):
-                raise LowEnergyError(f"the coaction images do not span weight {N}; tables inconsistent")
+                raise InternalError(f"the coaction images do not span weight {N}; tables inconsistent")
             gen_rows = chosen
             new_gens = [index_lists[i] for i in chosen]
         # basis element ζ(g) = (-1)^depth G(w_g): flip the rows of odd depth
@@ -306,7 +306,7 @@ def reduce_weight_motivic(
             if rec is not None and _agrees(rec, per_prime[-1]):
                 break
     else:
-        raise LowEnergyError(f"rational reconstruction failed at weight {N}; need more primes")
+        raise InternalError(f"rational reconstruction failed at weight {N}; need more primes")
     coords_q, gen_delta_q = rec
     t1 = time.perf_counter()
 
@@ -343,9 +343,8 @@ def reduce_weight_motivic(
             c = Fraction(mpmath.nstr(cfloat, digits, min_fixed=-10**6, max_fixed=10**6)).limit_denominator(10 ** (digits // 2 - 5))
             err = abs(resid - (mpmath.mpf(c.numerator) / c.denominator) * topval)
             if err > tol * max(scale, abs(topval)):
-                raise LowEnergyError(
+                raise InternalError(
                     f"weight {N}: the top coefficient of ζ{idx} is not a small rational at {digits} digits",
-                    hint="rebuild with more digits (a bug if it persists)",
                 )
             red: Dict[Monomial, Fraction] = {}
             for a, q in row.items():
@@ -358,7 +357,7 @@ def reduce_weight_motivic(
     # generators themselves must map to themselves
     for g in new_gens:
         if reductions[g] != {(g,): Fraction(1)}:
-            raise LowEnergyError(f"weight {N}: generator ζ{g} does not reduce to itself")
+            raise InternalError(f"weight {N}: generator ζ{g} does not reduce to itself")
     if N % 2 and (N,) not in new_gens:
         new_gens = [(N,)] + new_gens
     new_gens.sort(key=generator_preference)

@@ -41,7 +41,7 @@ from fractions import Fraction
 from math import gcd, isqrt
 from typing import Callable, Dict, List, Sequence, Tuple
 
-from ..errors import LowEnergyError
+from ..errors import InternalError
 from ..words import (
     Indices,
     admissible_indices,
@@ -337,7 +337,7 @@ def reduce_weight(
                     break
                 results.append((check_prime, red_c))
     else:  # pragma: no cover
-        raise LowEnergyError(f"rational reconstruction failed at weight {weight}; need more primes")
+        raise InternalError(f"rational reconstruction failed at weight {weight}; need more primes")
     t2 = time.perf_counter()
 
     col_names = [None] * ncols
@@ -346,7 +346,7 @@ def reduce_weight(
     free_set = set(free_ref)
     for key in col_names:
         if key[0] == "p" and col_of[key] not in free_set:
-            raise LowEnergyError(
+            raise InternalError(
                 f"products of lower-weight generators are dependent at weight {weight}: "
                 "the lower-weight tables are inconsistent"
             )

@@ -2,9 +2,31 @@
 
 Tables live in ``<cache>/mzv-v<FORMAT>/weight-<N>.json`` where ``<cache>``
 is ``$LOWENERGY_CACHE_DIR`` if set, else the user's cache directory
-(``platformdirs.user_cache_dir("lowenergy")``).  They are built by
-``lowenergy tables build --weight N`` (or :func:`build_tables`) and read
-lazily.  JSON, never pickle: a cache file is data, not code.
+(``platformdirs.user_cache_dir("lowenergy")``).  JSON, never pickle: a
+cache file is data, not code.
+
+**Building on demand.**  A store builds the weights it is asked for on first
+use (up to :data:`MAX_WEIGHT`), so library calls and commands never stop
+with "build the tables first".  ``lowenergy tables build --weight N`` (or
+:func:`build_tables`) builds ahead of time.  Single zetas never need a table:
+``ζ(2n)`` is a rational multiple of ``ζ(2)^n`` (Euler, via Bernoulli
+numbers) and an odd ``ζ(n)`` is a generator.  Builds are reported
+
+* to the logger ``"lowenergy.tables"`` at level INFO (silent unless you
+  configure logging, e.g. ``logging.basicConfig(level=logging.INFO)``), and
+* to the callback installed with :func:`build_progress` (a context manager)
+  or :func:`set_build_progress`, called as ``callback(weight, target,
+  message)``: ``message`` is ``"start"`` once (``weight`` the first weight to
+  build), then progress strings of the build, ``"done"`` after each weight,
+  ``"finished"`` at the end.
+
+A store made with ``TableStore(directory, auto_build=False)`` refuses
+instead (:class:`~lowenergy.errors.TableError` naming the command to run).
+A weight above :data:`MAX_WEIGHT` is refused with the limit.
+
+>>> store = TableStore("/nonexistent/never-created", auto_build=False)
+>>> store.reduction((4,))            # ζ(4) = 2/5 ζ(2)^2: no table needed
+{((2,), (2,)): Fraction(2, 5)}
 
 File contents (format 2)::
 
@@ -24,15 +46,17 @@ millions of coefficients).
 from __future__ import annotations
 
 import json
+import logging
 import os
 import tempfile
 import time
+from collections.abc import Mapping
+from contextlib import contextmanager
 from fractions import Fraction
 from pathlib import Path
-from collections.abc import Mapping
-from typing import Callable, Dict, List, Tuple
+from typing import Callable, Dict, Iterator, List, Optional, Tuple
 
-from ..errors import TableError
+from ..errors import InternalError, TableError
 from ..words import Indices
 from .reduction import Monomial, WeightTable, reduce_weight
 
@@ -43,11 +67,86 @@ __all__ = [
     "default_store",
     "build_tables",
     "BUILD_COMMAND",
+    "MAX_WEIGHT",
+    "build_progress",
+    "set_build_progress",
+    "single_zeta",
 ]
 
 FORMAT_VERSION = 2
 DOUBLE_SHUFFLE_MAX = 12
 BUILD_COMMAND = "lowenergy tables build --weight {weight}"
+#: Largest weight lowenergy builds tables for (on demand or with
+#: ``tables build``).  Weight 17 takes about 1.5 min and 1.3 GB from scratch
+#: on the development machine; each weight costs roughly twice the previous.
+MAX_WEIGHT = 18
+
+log = logging.getLogger("lowenergy.tables")
+
+#: ``callback(weight, target, message)`` told about builds made on demand.
+BuildProgress = Callable[[int, int, str], None]
+_PROGRESS: List[Optional[BuildProgress]] = [None]
+
+
+def set_build_progress(callback: Optional[BuildProgress]) -> Optional[BuildProgress]:
+    """Install the callback told about on-demand table builds; return the previous one."""
+    previous = _PROGRESS[0]
+    _PROGRESS[0] = callback
+    return previous
+
+
+@contextmanager
+def build_progress(callback: Optional[BuildProgress]) -> Iterator[None]:
+    """Report on-demand table builds to ``callback`` inside the ``with`` block.
+
+    >>> seen = []
+    >>> with build_progress(lambda w, target, msg: seen.append(msg)):
+    ...     pass
+    >>> seen
+    []
+    """
+    previous = set_build_progress(callback)
+    try:
+        yield
+    finally:
+        set_build_progress(previous)
+
+
+def _bernoulli(n: int) -> Fraction:
+    """Bernoulli number B_n (B_1 = -1/2) from Σ_{k<=n} C(n+1, k) B_k = 0 (A&S 23.1.2 at x=0)."""
+    b = [Fraction(1)]
+    for m in range(1, n + 1):
+        acc = Fraction(0)
+        binom = 1  # C(m+1, k)
+        for k in range(m):
+            acc += binom * b[k]
+            binom = binom * (m + 1 - k) // (k + 1)
+        b.append(-acc / (m + 1))
+    return b[n]
+
+
+def single_zeta(n: int) -> Dict[tuple, Fraction]:
+    """Canonical form of ``ζ(n)``, n ≥ 2, without any table.
+
+    ``ζ(2k) = (-1)^(k+1) B_2k (2π)^(2k) / (2 (2k)!)`` (A&S 23.2.16) with
+    ``π^2 = 6 ζ(2)``, so ``ζ(2k) = (-1)^(k+1) B_2k 24^k / (2 (2k)!) · ζ(2)^k``;
+    an odd ``ζ(n)`` is itself a generator.
+
+    >>> single_zeta(4)
+    {((2,), (2,)): Fraction(2, 5)}
+    >>> single_zeta(5)
+    {((5,),): Fraction(1, 1)}
+    """
+    if n < 2:
+        raise ValueError(f"single_zeta needs n >= 2, got {n}")
+    if n % 2:
+        return {((n,),): Fraction(1)}
+    k = n // 2
+    factorial = 1
+    for i in range(2, n + 1):
+        factorial *= i
+    coeff = (-1) ** (k + 1) * _bernoulli(n) * Fraction(24**k, 2 * factorial)
+    return {((2,),) * k: coeff}
 
 FKey = Tuple[int, Tuple[int, ...]]
 
@@ -107,10 +206,16 @@ class TableStore:
     ----------
     directory:
         Where the ``weight-N.json`` files are; default :func:`cache_dir`.
+    auto_build:
+        Build missing weights (up to :data:`MAX_WEIGHT`) when they are first
+        needed (default); ``False`` raises :class:`~lowenergy.errors.TableError`
+        instead.
     """
 
-    def __init__(self, directory: Path | None = None) -> None:
+    def __init__(self, directory: Path | str | None = None, *, auto_build: bool = True) -> None:
         self.directory = Path(directory) if directory is not None else cache_dir()
+        self.auto_build = auto_build
+        self._building = False
         self._reductions: Dict[int, Dict[Indices, Dict[Monomial, Fraction]]] = {}
         self._generators: Dict[int, List[Indices]] = {}
         self._falphabet: Dict[Indices, Dict[FKey, Fraction]] = {}
@@ -133,6 +238,10 @@ class TableStore:
         return w
 
     def _missing(self, weight: int) -> TableError:
+        if weight > MAX_WEIGHT:
+            return TableError(
+                f"MZV tables of weight {weight} are needed; lowenergy builds them up to weight {MAX_WEIGHT} only"
+            )
         built = self.built_weight()
         have = f"are built up to weight {built} only" if built >= 2 else "are not built yet"
         return TableError(
@@ -140,11 +249,45 @@ class TableStore:
             hint=f"run `{BUILD_COMMAND.format(weight=weight)}`",
         )
 
+    def ensure(self, weight: int) -> None:
+        """Make the tables of all weights up to ``weight`` available, building
+        the missing ones (see the module docstring); ``TableError`` beyond
+        :data:`MAX_WEIGHT` or when ``auto_build`` is off."""
+        if weight < 2 or self.built_weight() >= weight:
+            return
+        if weight > MAX_WEIGHT or not self.auto_build:
+            raise self._missing(weight)
+        if self._building:  # a build asked for a weight it has not made yet
+            raise InternalError(f"the table build needed weight {weight} before building it")
+        self.check_writable()  # before announcing (or computing) anything
+        target = weight
+        hook = _PROGRESS[0]
+        first = self.built_weight() + 1
+        if hook:
+            hook(first, target, "start")
+        log.info("building MZV tables of weights %d-%d in %s (once; cached)", first, target, self.directory)
+
+        def say(w: int, message: str) -> None:
+            if message == "done":
+                log.info("MZV tables: weight %d done (%.2f s)", w, self.stats(w).get("total_s", 0.0))
+            if hook and message != "cached":
+                hook(w, target, message)
+
+        self._building = True
+        try:
+            build_tables(weight, self, progress=say)
+        finally:
+            self._building = False
+        if hook:
+            hook(target, target, "finished")
+
     def _need_meta(self, weight: int) -> None:
         if weight in self._generators or weight < 2:
             return
         if not self.path(weight).exists():
-            raise self._missing(weight)
+            self.ensure(weight)
+            if weight in self._generators:
+                return
         mp = self.meta_path(weight)
         if not mp.exists():
             self._load(weight)
@@ -158,7 +301,9 @@ class TableStore:
         if weight < 2:
             return
         if not self.path(weight).exists():
-            raise self._missing(weight)
+            self.ensure(weight)
+            if weight in self._reductions:
+                return
         self._load(weight)
 
     def _read(self, path: Path, weight: int) -> dict:
@@ -196,6 +341,8 @@ class TableStore:
         weight = sum(indices)
         if weight == 0:
             return {(): Fraction(1)}
+        if len(indices) == 1:
+            return single_zeta(weight)
         self._need(weight)
         return self._reductions[weight][tuple(indices)]
 
@@ -207,6 +354,8 @@ class TableStore:
         weight = sum(indices)
         if weight == 0:
             return [((), 1, 1)]
+        if len(indices) == 1:
+            return [(m, c.numerator, c.denominator) for m, c in single_zeta(weight).items()]
         self._need(weight)
         reds = self._reductions[weight]
         if isinstance(reds, LazyReductions):
@@ -236,6 +385,11 @@ class TableStore:
         return dict(self._stats.get(weight, {}))
 
     def falphabet_of_generator(self, g: Indices) -> Dict[FKey, Fraction]:
+        g = tuple(g)
+        if g == (2,):
+            return {(1, ()): Fraction(1)}
+        if len(g) == 1:  # φ(ζ(2k+1)) = f_(2k+1)
+            return {(0, g): Fraction(1)}
         self._need_meta(sum(g))
         return self._falphabet[tuple(g)]
 
@@ -279,7 +433,22 @@ class TableStore:
 
     def forget(self) -> None:
         """Drop everything held in memory (files stay)."""
-        self.__init__(self.directory)
+        self.__init__(self.directory, auto_build=self.auto_build)
+
+    def check_writable(self) -> None:
+        """Create the directory if needed and make sure files can be written
+        there; :class:`~lowenergy.errors.TableError` (a user error) otherwise."""
+        try:
+            self.directory.mkdir(parents=True, exist_ok=True)
+            fd, tmp = tempfile.mkstemp(dir=self.directory, suffix=".tmp")
+            os.close(fd)
+            os.unlink(tmp)
+        except OSError as exc:
+            reason = exc.strerror or str(exc)
+            raise TableError(
+                f"cannot write MZV tables to the cache directory {self.directory}: {reason}",
+                hint="set LOWENERGY_CACHE_DIR to a writable directory",
+            ) from None
 
 
 _STORES: Dict[Path, TableStore] = {}
@@ -325,6 +494,10 @@ def build_tables(
     from .falphabet import generator_falphabet
 
     store = store or default_store()
+    if max_weight > MAX_WEIGHT:
+        raise TableError(f"lowenergy builds MZV tables up to weight {MAX_WEIGHT}, not {max_weight}")
+    if rebuild or store.built_weight() < max_weight:
+        store.check_writable()  # before any computation
     if rebuild:
         import shutil
 

@@ -278,15 +278,24 @@ def test_sigma_of_a_non_symmetric_candidate_warns(open_string):
 
 
 def test_numeric_fallback_beyond_the_tables(zeta2_candidate):
-    # the test tables reach weight 14 (tests/conftest.py); ζ(17) and ζ(3,14) need weight 17
-    cs = cset(eq("ok", "c[0,1]*zeta(17)", "zeta(2)*zeta(17)"), eq("bad", "c[0,1]*zeta(17)", "zeta(17)"),
-              eq("mixed", "c[0,1] - zeta(3,14)", "zeta(2) - zeta(3,14)"))
+    # tables are built on demand up to weight 18 (lowenergy.zeta.table.MAX_WEIGHT);
+    # ζ(3,17) has weight 20 and ζ(3,16) weight 19
+    cs = cset(eq("ok", "c[0,1]*zeta(3,17)", "zeta(2)*zeta(3,17)"), eq("bad", "c[0,1]*zeta(3,17)", "zeta(3,17)"),
+              eq("mixed", "c[0,1] - zeta(3,16)", "zeta(2) - zeta(3,16)"))
     report = check(zeta2_candidate, cs)
     for name, status in (("ok", PASS), ("bad", FAIL), ("mixed", PASS)):
         r = report[name]
         assert (r.status, r.mode) == (status, "numeric"), name
         assert r.lhs is None and r.residual is None
         assert any("compared numerically" in w for w in r.warnings)
+
+
+def test_single_zetas_stay_exact_at_any_weight(zeta2_candidate):
+    # ζ(17) and ζ(30) = rational·ζ(2)^15 need no table (A&S 23.2.16 for the even one)
+    cs = cset(eq("odd", "c[0,1]*zeta(17)", "zeta(2)*zeta(17)"), eq("even", "c[0,1]*zeta(30)", "zeta(2)*zeta(30)"))
+    report = check(zeta2_candidate, cs)
+    for name in ("odd", "even"):
+        assert (report[name].status, report[name].mode) == (PASS, "exact"), name
 
 
 def test_numeric_fallback_sees_tiny_non_zero_values(zeta2_candidate):

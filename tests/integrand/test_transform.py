@@ -260,7 +260,7 @@ def test_numeric_nielsen_of_one_minus_x(n, p, x):
 def test_needs_tables(tmp_path):
     from lowenergy.zeta.table import TableStore
 
-    empty = TableStore(tmp_path)
+    empty = TableStore(tmp_path, auto_build=False)
     assert g_of_one_minus_x((1, 1), store=empty)  # no MZV needed
     with pytest.raises(TableError, match="lowenergy tables build"):
         g_of_one_minus_x((0, 1), store=empty)

@@ -347,7 +347,7 @@ def test_terminal_table():
     from rich.table import Table
 
     e = param_expansion()
-    table = to_terminal(e, basis=[("[bold]X[/bold]", "s^3")], digits=8)
+    table = to_terminal(e, basis=[("[bold]X[/bold]", "s^3")], digits=8, width=250)
     assert isinstance(table, Table)
     assert table.row_count == 7
     console = Console(record=True, width=250)
@@ -361,7 +361,7 @@ def test_terminal_table_in_basis():
     from rich.console import Console
 
     console = Console(record=True, width=200)
-    console.print(to_terminal(beta_expansion(3), basis="symmetric", digits=6))
+    console.print(to_terminal(beta_expansion(3), basis="symmetric", digits=6, width=200))
     out = console.export_text()
     assert "sym[1,1]" in out and "lie in the basis" in out
 

@@ -173,12 +173,19 @@ def test_regularized_values():
     assert g_value((1, 0)) == zeta(2)
 
 
-def test_weight_beyond_table_message():
+def test_weight_beyond_table_message(tmp_path):
     from lowenergy.errors import TableError
+    from lowenergy.zeta.table import TableStore
 
+    # a store that may not build names the command that builds the weight
     with pytest.raises(TableError) as err:
-        zeta(8, 7)
-    assert "lowenergy tables build --weight 15" in str(err.value)
+        zeta(5, 3, store=TableStore(tmp_path, auto_build=False))
+    assert "lowenergy tables build --weight 8" in str(err.value)
+    assert not list(tmp_path.iterdir())
+    # beyond the buildable weights: the limit, and no command that would refuse
+    with pytest.raises(TableError) as err:
+        zeta(10, 9)
+    assert "up to weight 18" in str(err.value) and "tables build" not in str(err.value)
 
 
 # --- property tests (hypothesis) -------------------------------------------
