@@ -48,7 +48,8 @@ Options (:class:`AnsatzSpec`):
   is spanned by them);
 * ``x_shift`` p, ``y_shift`` q ≥ 0 — the Koba–Nielsen exponents
   ``-s-1+p`` and ``-t-1+q`` (symmetry needs p = q);
-* ``prefix`` — parameters are ``prefix1, prefix2, ...``;
+* ``prefix`` — parameters are ``prefix1, prefix2, ...``; ``title`` — the
+  file's title (default: a description of the ansatz);
 * ``domain`` — ``"line"`` (functions of real 0 < x < 1); the extension
   point for other integration domains (:data:`DOMAINS`).
 
@@ -69,6 +70,7 @@ Examples
 from __future__ import annotations
 
 import re
+import shlex
 from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from typing import Callable, Dict, Hashable, List, Mapping, Optional, Sequence, Tuple
@@ -177,6 +179,7 @@ class AnsatzSpec:
     y_shift: int = 0
     prefix: str = "a"
     domain: str = "line"
+    title: str = ""
 
     def validate(self) -> None:
         """Raise :class:`~lowenergy.errors.InputError` (naming the option) on bad values."""
@@ -206,6 +209,8 @@ class AnsatzSpec:
             raise InputError(f"--prefix must be letters (and _), got {self.prefix!r}", hint="e.g. --prefix a")
         if self.prefix in _RESERVED or self.prefix.startswith("zeta"):
             raise InputError(f"--prefix {self.prefix!r} clashes with a reserved name", hint="e.g. --prefix a")
+        if not isinstance(self.title, str) or len(self.title) > 200 or any(ord(ch) < 32 for ch in self.title):
+            raise InputError("--title must be one line of at most 200 characters")
 
     def max_degree(self, weight: int) -> int:
         """The largest total degree in s, t attached to a product of this total weight."""
@@ -236,6 +241,8 @@ class AnsatzSpec:
             parts.append(f"--x-shift {self.x_shift} --y-shift {self.y_shift}")
         if self.prefix != "a":
             parts.append(f"--prefix {self.prefix}")
+        if self.title:
+            parts.append(f"--title {shlex.quote(self.title)}")
         return " ".join(parts)
 
 
@@ -279,7 +286,7 @@ class AnsatzTerm:
             return _join(pre, direct)
         image = _join(_mono_text(self.monomial[::-1]), c.function_text("1-x"))
         if image == direct and self.sign > 0:
-            return _join(pre, "2", direct) if direct != "1" else _join(pre, "2")
+            return _join("2", pre, direct)
         return f"{pre}*({direct} {'+' if self.sign > 0 else '-'} {image})"
 
 
@@ -382,7 +389,7 @@ class Ansatz:
         lines.append("# per total weight w: candidates / independent / parameters")
         for row in self.per_weight:
             lines.append(f"#   w = {row['weight']}: {row['functions']} / {row['independent_functions']} / {row['parameters']}")
-        title = f"Ansatz: {fam.key} functions up to weight {spec.weight}, {len(self.terms)} parameters"
+        title = spec.title or f"Ansatz: {fam.key} functions up to weight {spec.weight}, {len(self.terms)} parameters"
         body = "\n".join(f"  {'+ ' if i else '  '}{t.text()}" for i, t in enumerate(self.terms))
         notes = " ".join(s.strip() for s in summary[1:])
         out = lines + [

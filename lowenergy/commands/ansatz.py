@@ -29,6 +29,7 @@ def ansatz(
     y_shift: int = typer.Option(0, "--y-shift", help="q in (1-x)^(-t-1+q)"),
     prefix: str = typer.Option("a", "--prefix", help="parameters are named PREFIX1, PREFIX2, ..."),
     domain: str = typer.Option("line", "--domain", help="integration domain: 'line' (0 < x < 1)"),
+    title: str = typer.Option("", "--title", help="title of the file (default: a description of the ansatz)"),
     write: Optional[str] = typer.Option(None, "--write", help="write the integrand file here (else print it)"),
     as_json: bool = typer.Option(False, "--json", help="print the counts as one JSON object"),
 ) -> None:
@@ -39,7 +40,7 @@ def ansatz(
     spec = AnsatzSpec(
         weight=weight, family=family, mzv=mzv, uniform=uniform, degree=degree, degree_rule=degree_rule,
         exact_degree=exact_degree, symmetry=symmetry, x_shift=x_shift, y_shift=y_shift, prefix=prefix,
-        domain=domain,
+        domain=domain, title=title,
     )
     result = generate(spec)
     text = result.to_toml()
