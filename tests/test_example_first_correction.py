@@ -58,3 +58,56 @@ def test_the_invented_answer_lies_in_the_ansatz():
     fixed = substitute(read_integrand(EX / "first_correction_ansatz.toml"), answer_by_name(a))
     assert canonical(fixed) == canonical(read_integrand(EX / "first_correction_truth.toml"))
 
+
+
+# --------------------------------------------------------------------------
+# the walkthrough of examples/README.md, end to end through the command line
+# --------------------------------------------------------------------------
+
+
+def test_walkthrough(tmp_path):
+    import json
+
+    from typer.testing import CliRunner
+
+    from lowenergy.cli import app
+
+    runner = CliRunner()
+
+    def run(*args):
+        return runner.invoke(app, [str(a) for a in args])
+
+    poles, loc = EX / "first_correction_poles.toml", EX / "first_correction_localization.toml"
+    ansatz = tmp_path / "first_correction_ansatz.toml"
+    res = run("ansatz", "--weight", 3, "--family", "sv", "--mzv", "--degree", 1, "--symmetry", "symmetric",
+              "--title", SPEC.title, "--write", ansatz)
+    assert res.exit_code == 0, res.stderr
+    assert ansatz.read_text(encoding="utf-8") == (EX / "first_correction_ansatz.toml").read_text(encoding="utf-8")
+    answer = {k: str(v) for k, v in answer_by_name(generate(SPEC)).items()}
+
+    # the pole structure alone leaves one parameter
+    res = run("fix", ansatz, poles, "--json")
+    assert res.exit_code == 0, res.stderr
+    out = json.loads(res.stdout)
+    assert out["status"] == "underdetermined" and len(out["free"]) == 1
+    assert out["rank"] == len(answer) - 1
+    # what it did fix agrees with the answer
+    assert all(answer[k] == v for k, v in out["solution"].items())
+
+    # with the localization-type relation the answer is unique and is the invented one
+    fixed = tmp_path / "fixed.toml"
+    res = run("fix", ansatz, poles, loc, "--write", fixed, "--json")
+    assert res.exit_code == 0, res.stderr
+    out = json.loads(res.stdout)
+    assert out["status"] == "unique" and out["solution"] == answer
+
+    # expand: the fixed file and the hand-written answer give the same table
+    a = json.loads(run("expand", fixed, "--order", 3, "--json").stdout)
+    b = json.loads(run("expand", EX / "first_correction_truth.toml", "--order", 3, "--json").stdout)
+    assert {tuple(t["powers"]): t["exact"] for t in a["terms"]} == {tuple(t["powers"]): t["exact"] for t in b["terms"]}
+
+    # check: every pole condition and the relation pass
+    for constraints in (poles, loc):
+        res = run("check", fixed, constraints)
+        assert res.exit_code == 0, res.stdout
+        assert " 0 failed" in res.stdout
