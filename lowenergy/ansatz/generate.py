@@ -98,6 +98,7 @@ __all__ = [
     "generate",
     "independent_subset",
     "MAX_PARAMETERS",
+    "MAX_CANDIDATES",
 ]
 
 Word = Tuple[int, ...]
@@ -109,6 +110,8 @@ DEGREE_RULES = ("fixed", "falling", "rising")
 SYMMETRIES = ("none", "symmetric", "antisymmetric")
 #: Refuse larger ansätze (the integrand reader and fix would struggle anyway).
 MAX_PARAMETERS = 5000
+#: Most candidate products of one total weight (the exact rank is dense in them).
+MAX_CANDIDATES = 2100
 MAX_DEGREE = 30
 MAX_SHIFT = 8
 _RESERVED = frozenset({"zeta", "pi", "G", "Li", "log", "svpolylog", "s", "t", "x"})
@@ -515,6 +518,13 @@ def generate(spec: AnsatzSpec, store: TableStore | None = None) -> Ansatz:
     terms_by_weight: List[List[Tuple[Candidate, Tuple[int, int], int]]] = []
     per_weight: List[dict] = []
     low = spec.weight if spec.uniform else 0
+    for total in range(low, spec.weight + 1):  # refuse before any work
+        size = sum(len(_constants(total - k, store)) * 2**k for k in range(total + 1) if spec.mzv or k == total)
+        if size > MAX_CANDIDATES:
+            raise InputError(
+                f"weight {total} alone has {size} candidate functions, more than {MAX_CANDIDATES}",
+                hint="lower --weight (or drop --mzv)",
+            )
     for total in range(low, spec.weight + 1):
         # candidates of this total weight: smaller MZV weight first, so that
         # pure functions are preferred when relations tie them to MZV multiples

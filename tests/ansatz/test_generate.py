@@ -220,6 +220,7 @@ def test_file_parses_and_says_how_it_was_made():
         (dict(weight=2, prefix="s"), "reserved"),
         (dict(weight=2, prefix="a1"), "--prefix must be letters"),
         (dict(weight=2, domain="disk"), "unknown --domain"),
+        (dict(weight=12, family="mpl"), "4096 candidate functions"),
         (dict(weight=0, degree_rule="falling", exact_degree=True, degree=0, uniform=True, symmetry="antisymmetric"),
          "no term"),
     ],
