@@ -3,5 +3,6 @@
 One line per module, alphabetical.
 """
 
+from . import ansatz  # noqa: F401
 from . import dispersion  # noqa: F401
 from . import highenergy  # noqa: F401

@@ -38,7 +38,8 @@ in the file):
 * ``log(x)``, ``log(1-x)``, ``Li(n, x)``, ``Li(n, 1-x)`` (integer ``n ≥ 1``),
   ``G(a1, ..., an; x)`` and ``G(a1, ..., an; 1-x)`` (letters 0 and 1);
   ``svpolylog(a1, ..., an; x)``: Brown's single-valued polylogarithm L_w restricted
-  to 0 < x < 1 (z = z̄ = x), weight ≤ 8 (:mod:`lowenergy.svpolylog`);
+  to 0 < x < 1 (z = z̄ = x), weight ≤ 8 (:mod:`lowenergy.svpolylog`), and
+  ``svpolylog(a1, ..., an; 1-x)`` (L_w at 1 - x, rewritten in ``G(u; x)``);
 * products and non-negative integer powers of all these; products of sums
   are expanded.
 
@@ -562,6 +563,15 @@ _Coef = Dict[_CoefKey, Fraction]
 _Value = Dict[_Key, _Coef]
 
 
+def _at_one_minus_x(combination: Dict[Tuple[int, ...], MZV], store: TableStore) -> Dict[Tuple[int, ...], MZV]:
+    """``Σ_u c_u G(u; 1-x)`` rewritten as ``Σ_v d_v G(v; x)`` (exact)."""
+    out: Dict[Tuple[int, ...], MZV] = {}
+    for u, c in combination.items():
+        for v, d in g_of_one_minus_x(u, store=store).items():
+            out[v] = out.get(v, MZV()) + c * d
+    return {v: c for v, c in out.items() if c}
+
+
 def _gen_key(g: Tuple[int, ...]) -> tuple:
     return (sum(g), g)
 
@@ -804,14 +814,20 @@ class _Evaluator:
             letters = self.letters(node)
             if len(letters) > MAX_SV_WEIGHT:
                 raise self.fail(node, f"single-valued polylogarithms are built up to weight {MAX_SV_WEIGHT}")
-            if self.x_argument(node.args[0]) != "x":
-                raise self.fail(node.args[0], f"svpolylog is supported only at {x}", f"write svpolylog(0,1; {x})")
+            kind = self.x_argument(node.args[0])
+            if kind is None:
+                raise self.fail(node.args[0], f"svpolylog is supported only at {x} and 1-{x}",
+                                f"write svpolylog(0,1; {x})")
             from ..svpolylog.construct import real_line_restriction
 
             try:
                 if letters:
                     require_weight(len(letters), self.store)
                 combination = real_line_restriction(tuple(letters), store=self.store)
+                if kind == "1-x":
+                    # L_w(1-x) = Σ_u c_u G(u; 1-x): the restriction is an identity of
+                    # functions on 0 < x < 1, so substitute x -> 1-x word by word.
+                    combination = _at_one_minus_x(combination, self.store)
             except LowEnergyError as err:
                 raise err.located(column=node.col, term=_node_text(node))
             return self.words(combination)

@@ -527,6 +527,8 @@ def test_lsv_equals_derived_combination(word):
         "s*svpolylog(1,0,1; x)*log(x) + t^2*svpolylog(0; x)^2",
         "svpolylog(0,1; x)*G(0,1; x)*Li(2, 1-x)",
         "(1+s)*svpolylog(0,0,1,0,1,1,0,1; x)",  # weight 8, the largest allowed
+        "svpolylog(0,1; 1-x)",
+        "svpolylog(0,1,1; 1 - x)*svpolylog(1; x)",
     ],
 )
 def test_accepted_forms(text):
@@ -551,10 +553,10 @@ def test_other_integration_variable():
         ("svpolylog(a; x)", "letters of svpolylog must be 0 or 1", "a"),
         ("svpolylog(0,0,0,0,0,0,0,0,1; x)", "built up to weight 8", None),
         ("svpolylog(1,1,1,1,1,1,1,1,1,1; x)", "built up to weight 8", None),
-        ("svpolylog(0,1; 1-x)", "svpolylog is supported only at x", "1 - x"),
-        ("svpolylog(0,1; 2*x)", "svpolylog is supported only at x", "2*x"),
-        ("svpolylog(0,1; 1)", "svpolylog is supported only at x", "1"),
-        ("svpolylog(0,1; x^2)", "svpolylog is supported only at x", None),
+        ("svpolylog(0,1; 2*x)", "svpolylog is supported only at x and 1-x", "2*x"),
+        ("svpolylog(0,1; 1)", "svpolylog is supported only at x and 1-x", "1"),
+        ("svpolylog(0,1; x^2)", "svpolylog is supported only at x and 1-x", None),
+        ("svpolylog(0,1; 1+x)", "svpolylog is supported only at x and 1-x", None),
         ("svpolylog(x)", "svpolylog needs letters, ';' and the argument", None),
         ("svpolylog(0,1)", "svpolylog needs letters, ';' and the argument", None),
         ("svpolylog(0,1; x, x)", "svpolylog needs letters, ';' and the argument", None),
@@ -583,3 +585,32 @@ def test_bare_lsv_is_reported_as_a_function():
 
     with pytest.raises(InputError, match="'svpolylog' is a function"):
         integrand_from_text('integrand = "x^(-s-1)*(1-x)^(-t-1)*svpolylog"\n', source="bare.toml")
+
+
+# --------------------------------------------------------------------------
+# svpolylog(w; 1-x): L_w at the point 1 - x of the real line
+# --------------------------------------------------------------------------
+
+
+def test_lsv_at_one_minus_x_low_weight_identities():
+    # L_0(1-x) = log|1-x|^2 = L_1(x), L_1(1-x) = log|x|^2 = L_0(x) (module docstring: L_0, L_1)
+    assert same_terms("svpolylog(0; 1-x)", "svpolylog(1; x)")
+    assert same_terms("svpolylog(1; 1-x)", "svpolylog(0; x)")
+    # weight 2 on the real line is 2 log x log(1-x) for 01 and 10 (above), symmetric in x <-> 1-x
+    assert same_terms("svpolylog(0,1; 1-x)", "2*log(x)*log(1-x)")
+    assert same_terms("svpolylog(0,0; 1-x)", "2*log(1-x)^2")
+
+
+@pytest.mark.parametrize("word", [(0, 0, 1), (0, 1, 1), (1, 0, 0), (0, 1, 0, 1), (1, 1, 0, 1), (0, 0, 1, 1)])
+def test_lsv_at_one_minus_x_numerically(word):
+    """svpolylog(w; 1-x), as read (a combination of G(u; x)), equals the independent
+    reference L_w evaluated at the point 1 - x (derivation in the module docstring)."""
+    terms = terms_from_expression(f"svpolylog({','.join(map(str, word))}; 1-x)")
+    with mpmath.workdps(DPS):
+        for x in (mpmath.mpf("0.2"), mpmath.mpf("0.45"), mpmath.mpf("0.7"), mpmath.mpf("0.93")):
+            ours = mpmath.mpf(0)
+            for t in terms:
+                (c,) = t.coefficient.values()
+                ours += c.numeric(DPS) * g_function(t.word)(x, 1 - x)
+            ref = reference_lsv(tuple(word))(1 - x, x)
+            assert abs(ours - ref) < mpmath.mpf(10) ** (10 - DPS) * (1 + abs(ref))

@@ -71,8 +71,11 @@ def test_basis_elements_are_independent_and_single_valued():
             assert sv_decompose(value) == {mono: Fraction(1)}, (w, k)
 
 
-@pytest.mark.parametrize("x", [zeta(2), zeta(3, 5), zeta(2) * zeta(3), zeta(3, 3, 5)])
-def test_not_single_valued_is_refused(x):
+@pytest.mark.parametrize("factors", [[(2,)], [(3, 5)], [(2,), (3,)], [(3, 3, 5)]])
+def test_not_single_valued_is_refused(factors):
+    x = MZV.one()
+    for idx in factors:
+        x = x * zeta(*idx)
     assert not is_single_valued(x)
     with pytest.raises(InputError, match="not a single-valued MZV"):
         sv_decompose(x)
