@@ -27,6 +27,7 @@ def commands(readme: Path):
     text = readme.read_text(encoding="utf-8")
     out = []
     for block in re.findall(r"```sh\n(.*?)```", text, flags=re.S):
+        block = re.sub(r"\\\n\s*", " ", block)  # join continuation lines
         for line in block.splitlines():
             line = line.removeprefix("$ ").strip()
             if "lowenergy" in line.split("#")[0] and not line.startswith(("python3 ", "source ")):
