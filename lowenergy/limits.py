@@ -35,7 +35,8 @@ __all__ = [
     "MAX_STUFFLE_WEIGHT",
     "MAX_REGULARIZATION_WORK",
     "MAX_TERMS",
-    "MAX_WORK",
+    "MAX_INTEGRAND_WORK",
+    "MAX_SUMMANDS",
     "MAX_RATIONAL_BITS",
     "MAX_MZV_PRODUCT_WORK",
     "MAX_TOML_BYTES",
@@ -49,8 +50,8 @@ __all__ = [
 ]
 
 #: Longest expression (one integrand, relation, table cell or command-line
-#: argument), in characters.
-MAX_TEXT_LENGTH = 100_000
+#: argument), in characters (parsing costs about 50 microseconds a character).
+MAX_TEXT_LENGTH = 50_000
 #: Deepest nesting of parentheses, calls, signs and ``^`` together in one
 #: expression.
 MAX_DEPTH = 200
@@ -82,11 +83,14 @@ MAX_WORD_LENGTH = 30
 MAX_TERMS = 200_000
 #: Work budget for products: most multiplications of terms while reading one
 #: integrand (counted, with the shuffles, before each product is formed).
-MAX_WORK = 1_000_000
+#: About 30 microseconds each.
+MAX_INTEGRAND_WORK = 100_000
+#: Most top-level terms of one integrand (about 0.1 ms each).
+MAX_SUMMANDS = 5_000
 #: Work budget for products of MZVs in one expression (a relation, a table
 #: cell, a command-line expression): most products of canonical monomials,
 #: counted before each product is formed.  About 30 microseconds each.
-MAX_MZV_PRODUCT_WORK = 100_000
+MAX_MZV_PRODUCT_WORK = 40_000
 #: Largest size, in bits, of the numerator or denominator of a rational
 #: produced while reading (``((64^64)^64)^64`` would otherwise grow without
 #: bound).

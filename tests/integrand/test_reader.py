@@ -238,9 +238,9 @@ def test_long_flat_sum_is_not_recursive():
     text = "x^(-s-1)*(" + "+".join(f"s^{k % 7}" for k in range(12000)) + ")"
     (term,) = terms_from_expression(text)
     assert sum(term.coefficient.values(), MZV()) == R(12000)
-    text = "+".join(["log(x)*s"] * 10000)
+    text = "+".join(["log(x)*s"] * 4000)
     (term,) = terms_from_expression(text)
-    assert term.coefficient == {(1, 0): R(10000)}
+    assert term.coefficient == {(1, 0): R(4000)}
 
 
 # -- numerical checks of the conversions -------------------------------------
