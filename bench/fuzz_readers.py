@@ -8,8 +8,10 @@ type confusion, huge numbers, deep nesting, long words, long sums, towers).
 Each input runs in a separate worker process (a pool of ``--jobs`` workers
 that read one input at a time from a pipe):
 
-* a reply later than ``--timeout`` seconds (default 5) counts as a timeout:
-  the worker is killed and replaced;
+* an input that takes more than ``--timeout`` seconds (default 5) of CPU
+  time counts as a timeout, and so does one without a reply after
+  ``--wall-factor`` times that of wall time (the worker is then killed and
+  replaced; CPU time keeps the measure fair on a shared machine);
 * a worker whose peak resident memory passes ``--memory`` MB (default 1024)
   while reading an input, or that raises MemoryError (its address space is
   capped at 4 GB), counts as a memory blow-up and is replaced;
@@ -49,6 +51,7 @@ out.write("ready\n"); out.flush()
 for line in sys.stdin:
     job = json.loads(line)
     t0 = time.perf_counter()
+    c0 = time.process_time()
     try:
         run_reader(job["reader"], job["text"])
         kind, detail = "result", ""
@@ -61,8 +64,9 @@ for line in sys.stdin:
         where = f"{tb[-1].filename.split('lowenergy/')[-1]}:{tb[-1].lineno}" if tb else "?"
         kind, detail = "other exception", f"{type(err).__name__} at {where}: {str(err)[:150]}"
     secs = time.perf_counter() - t0
+    cpu = time.process_time() - c0
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024
-    out.write(json.dumps({"kind": kind, "detail": detail, "secs": secs, "rss": rss}) + "\n")
+    out.write(json.dumps({"kind": kind, "detail": detail, "secs": secs, "cpu": cpu, "rss": rss}) + "\n")
     out.flush()
 """
 
@@ -82,7 +86,8 @@ class Worker:
             text=True,
             bufsize=1,
         )
-        assert self.proc.stdout.readline().strip() == "ready"
+        if self.proc.stdout.readline().strip() != "ready":
+            raise SystemExit("a fuzz worker failed to start (run the WORKER code by hand to see why)")
         self.base_rss = 0
         self.job = None
         self.sent = 0.0
@@ -123,6 +128,8 @@ def main() -> None:
     ap.add_argument("--examples", type=int, default=10_000, help="inputs per reader")
     ap.add_argument("--jobs", type=int, default=2)
     ap.add_argument("--timeout", type=float, default=5.0)
+    ap.add_argument("--wall-factor", type=float, default=4.0,
+                    help="kill a worker after this many times --timeout of wall time (the machine may be shared)")
     ap.add_argument("--memory", type=int, default=1024, help="MB")
     ap.add_argument("--seed", type=int, default=0)
     ap.add_argument("--readers", default="integrand,constraints,expression,csv")
@@ -177,18 +184,18 @@ def main() -> None:
                 if kind == "memory":
                     escapes.append((reader, f"memory: peak {reply['rss'] >> 20} MB", job["text"]))
                     w.kill()
-                elif reply["secs"] > args.timeout:
+                elif reply["cpu"] > args.timeout:
                     kind = "timeout"
-                    escapes.append((reader, f"timeout: {reply['secs']:.1f} s", job["text"]))
+                    escapes.append((reader, f"timeout: {reply['cpu']:.1f} s CPU", job["text"]))
                 counts[kind] += 1
                 if kind == "other exception":
                     escapes.append((reader, reply["detail"], job["text"]))
-                slowest.append((reply["secs"], reader, job["text"]))
+                slowest.append((reply["cpu"], reader, job["text"]))
             for fd, w in list(busy.items()):
-                if now - w.sent > args.timeout:
+                if now - w.sent > args.wall_factor * args.timeout:
                     busy.pop(fd)
                     counts["timeout"] += 1
-                    escapes.append((reader, f"timeout: killed after {args.timeout} s", w.job["text"]))
+                    escapes.append((reader, f"timeout: killed after {args.wall_factor * args.timeout} s wall", w.job["text"]))
                     w.job = None
                     w.kill()
         for w in workers:
@@ -206,7 +213,7 @@ def main() -> None:
               f"| {c['timeout']:,} | {c['memory']:,} | {secs:.0f} s | {rss >> 20} MB |")
     print(f"\ntotal wall time {time.perf_counter() - t_all:.0f} s, {args.jobs} workers")
     slowest.sort(reverse=True)
-    print("\nslowest inputs:")
+    print("\nslowest inputs (CPU seconds):")
     for secs, reader, text in slowest[:8]:
         print(f"  {secs:6.2f} s  {reader:11s} {text[:110]!r}")
     if escapes:
