@@ -153,6 +153,8 @@ def main() -> None:
         t0 = time.perf_counter()
         inputs = collect_inputs(reader, args.examples, args.seed)
         gen_secs = time.perf_counter() - t0
+        print(f"{reader}: {len(inputs)} inputs generated in {gen_secs:.0f} s", flush=True)
+        done = 0
         counts = {"result": 0, "package error": 0, "other exception": 0, "timeout": 0, "memory": 0}
         workers = [Worker(env) for _ in range(args.jobs)]
         queue = list(enumerate(inputs))
@@ -191,6 +193,9 @@ def main() -> None:
                 if kind == "other exception":
                     escapes.append((reader, reply["detail"], job["text"]))
                 slowest.append((reply["cpu"], reader, job["text"]))
+                done += 1
+                if done % 250 == 0:
+                    print(f"  {reader}: {done} run, {dict(counts)}", flush=True)
             for fd, w in list(busy.items()):
                 if now - w.sent > args.wall_factor * args.timeout:
                     busy.pop(fd)

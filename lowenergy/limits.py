@@ -84,7 +84,7 @@ MAX_TERMS = 200_000
 #: Work budget for products: most multiplications of terms while reading one
 #: integrand (counted, with the shuffles, before each product is formed).
 #: About 30 microseconds each.
-MAX_INTEGRAND_WORK = 100_000
+MAX_INTEGRAND_WORK = 50_000
 #: Most top-level terms of one integrand (about 0.1 ms each).
 MAX_SUMMANDS = 5_000
 #: Work budget for products of MZVs in one expression (a relation, a table
