@@ -15,14 +15,14 @@ import them from here (some re-export them under their old names).
 >>> check_weight(24)
 Traceback (most recent call last):
     ...
-lowenergy.errors.InputError: MZV weight 24 is beyond the package's limit of 18; hint: the package builds MZV tables up to weight 18 (`lowenergy tables build --weight 18`); reachable weights are 0 to 18
+lowenergy.errors.TableError: MZV weight 24 is beyond the package's limit of 18; hint: the package builds MZV tables up to weight 18 (`lowenergy tables build --weight 18`); reachable weights are 0 to 18
 """
 
 from __future__ import annotations
 
 from fractions import Fraction
 
-from .errors import InputError
+from .errors import InputError, TableError
 
 __all__ = [
     "MAX_TEXT_LENGTH",
@@ -113,9 +113,14 @@ MAX_DECIMAL_EXPONENT = 10_000
 
 
 def check_weight(weight: int, what: str = "MZV") -> None:
-    """Refuse a weight above :data:`MAX_WEIGHT` with a message saying what is reachable."""
+    """Refuse a weight above :data:`MAX_WEIGHT` with a message saying what is reachable.
+
+    The error is a :class:`~lowenergy.errors.TableError` (no table can hold
+    that weight), so callers with a numeric fallback for missing tables
+    (``lowenergy check``) still use it.
+    """
     if weight > MAX_WEIGHT:
-        raise InputError(
+        raise TableError(
             f"{what} weight {weight} is beyond the package's limit of {MAX_WEIGHT}",
             hint=f"the package builds MZV tables up to weight {MAX_WEIGHT} "
             f"(`lowenergy tables build --weight {MAX_WEIGHT}`); reachable weights are 0 to {MAX_WEIGHT}",

@@ -27,7 +27,7 @@ ONES_ZEROS_24 = "G(" + ",".join(["1"] * 12 + ["0"] * 12) + ";1)"
 
 
 def test_weight_24_word_is_refused_at_once_naming_the_reachable_weight():
-    with pytest.raises(InputError) as info:
+    with pytest.raises(TableError) as info:
         evaluate(ONES_ZEROS_24)
     text = str(info.value)
     assert "weight 24" in text and f"limit of {limits.MAX_WEIGHT}" in text
@@ -37,9 +37,9 @@ def test_weight_24_word_is_refused_at_once_naming_the_reachable_weight():
 @pytest.mark.parametrize("scheme", ["shuffle", "stuffle"])
 def test_long_divergent_index_lists_are_refused(scheme):
     # two dozen leading 1s: a RecursionError or minutes of work before
-    with pytest.raises(InputError, match="beyond the package's limit"):
+    with pytest.raises(TableError, match="beyond the package's limit"):
         evaluate("zeta(" + ",".join(["1"] * 24) + ",2)", regularize=scheme)
-    with pytest.raises(InputError):
+    with pytest.raises(TableError):
         zeta(*([1] * 300 + [2]), regularize=scheme)
 
 
