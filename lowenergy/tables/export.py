@@ -556,6 +556,8 @@ class _CsvReader:
         text = cell.strip()
         if not text:
             return
+        if text.lstrip("+-").lower() in ("nan", "snan", "inf", "infinity"):
+            raise self.error("column 'numeric' is not a finite number", line, cell)
         if not _NUMERIC_CELL.fullmatch(text):
             # also keeps Decimal away from NaN, Infinity, '1_000' and other digits
             raise self.error("column 'numeric' is not a decimal number", line, cell,
