@@ -55,6 +55,7 @@ def test_missing_tables_are_reported_before_regularizing(tmp_path):
     from lowenergy.zeta.table import TableStore
 
     empty = TableStore(tmp_path)
+    empty.auto_build = False  # issue 11 builds on demand; here: the refusal path
     word = (1, 1) + (0, 1) * 6 + (0, 0)  # weight 16
     with pytest.raises(TableError, match="weight 16 is needed"):
         g_value(word, store=empty)
