@@ -328,7 +328,8 @@ def zeta(*indices: int, regularize: str | None = None, store: TableStore | None 
     if not idx:
         return MZV.one()
     weight = sum(idx)
-    check_weight(weight)
+    if len(idx) > 1:  # single zetas need no table at any weight
+        check_weight(weight)
     if not is_convergent_indices(idx):
         if regularize is None:
             raise RegularizationError(
