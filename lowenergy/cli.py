@@ -161,7 +161,8 @@ def user_errors(func):
                 return func(*args, **kwargs)
         except LowEnergyError as err:
             reporter.close()
-            typer.echo(f"error: {err}", err=True)
+            # one line, whatever the offending text contained
+            typer.echo("error: " + " ".join(str(err).split("\n")).replace("\r", " "), err=True)
             raise typer.Exit(2)
         except (typer.Exit, typer.Abort, click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
             raise

@@ -95,6 +95,7 @@ from fractions import Fraction
 from typing import Callable, Dict, Iterator, List, Optional, Tuple, TypeVar
 
 from .errors import LowEnergyError, ParseError
+from .limits import MAX_DEPTH, MAX_DIGITS, MAX_TEXT_LENGTH
 
 T = TypeVar("T")
 
@@ -120,12 +121,9 @@ __all__ = [
     "MAX_DIGITS",
 ]
 
-#: Longest text :func:`parse_expression` accepts, in characters.
-MAX_INPUT_LENGTH = 100_000
-#: Deepest nesting of parentheses, calls, signs and ``^`` together.
-MAX_DEPTH = 200
-#: Most digits a number literal may have (integer and decimal part together).
-MAX_DIGITS = 1000
+#: Longest text :func:`parse_expression` accepts, in characters
+#: (:data:`lowenergy.limits.MAX_TEXT_LENGTH`).
+MAX_INPUT_LENGTH = MAX_TEXT_LENGTH
 
 _FIRST = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz_")
 _DIGITS = frozenset("0123456789")

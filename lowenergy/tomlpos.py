@@ -395,3 +395,13 @@ def load_toml(text: str, source: str, hint: str) -> dict:
         raise toml_error(exc, text, source, hint) from None
     except RecursionError:
         raise ParseError("TOML nested too deeply", source=source, hint="flatten the arrays") from None
+    except ValueError as exc:
+        # Python's integer-string limit (an integer of 5000 digits) is a
+        # ValueError of int() inside tomllib, not a TOMLDecodeError
+        if "digits" in str(exc):
+            raise ParseError(
+                "malformed TOML: an integer with too many digits",
+                source=source,
+                hint="integers in these files are small; write long numbers as strings",
+            ) from None
+        raise ParseError(f"malformed TOML: {exc}", source=source, hint=hint) from None

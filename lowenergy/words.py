@@ -33,6 +33,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 from functools import lru_cache
+from math import comb
 from typing import Dict, Iterable, Mapping, Tuple
 
 from .errors import InputError, RegularizationError
@@ -55,6 +56,7 @@ __all__ = [
     "regularize_word",
     "regularize_indices",
     "add_into",
+    "regularization_cost",
 ]
 
 Word = Tuple[int, ...]
@@ -245,42 +247,171 @@ def dual_indices(indices: Indices) -> Indices:
 # shuffle regularization
 # --------------------------------------------------------------------------
 
-@lru_cache(maxsize=200_000)
+def _leading(word: tuple, letter) -> int:
+    m = 0
+    while m < len(word) and word[m] == letter:
+        m += 1
+    return m
+
+
+def _trailing(word: tuple, letter) -> int:
+    m = 0
+    while m < len(word) and word[len(word) - 1 - m] == letter:
+        m += 1
+    return m
+
+
+def _reduce_by_levels(start: tuple, level, step) -> tuple:
+    """Apply a regularization recursion to a whole combination at once.
+
+    ``level(key)`` is ``None`` for a convergent key, otherwise a tuple that
+    ``step(key, coefficient, add)`` strictly lowers: it rewrites ``key`` as
+    other keys (``add(other, c)``), all of a smaller level.  Processing the
+    levels from the top down touches every key once, so the cost is the
+    number of distinct keys (at most 2^weight) times the length of one step,
+    and there is no recursion.  (Memoizing the value of every key separately
+    instead costs up to 4^weight: each of the 2^weight values is itself a
+    combination of up to 2^weight words.)
+    """
+    out: dict = {}
+    pending: dict = {}
+    buckets: dict = {}
+
+    def add(key: tuple, c) -> None:
+        lev = level(key)
+        if lev is None:
+            new = out.get(key, 0) + c
+            if new:
+                out[key] = new
+            else:
+                out.pop(key, None)
+            return
+        if key not in pending:
+            buckets.setdefault(lev, []).append(key)
+        pending[key] = pending.get(key, 0) + c
+
+    add(start, Fraction(1))
+    while buckets:
+        top = max(buckets)
+        for key in buckets.pop(top):
+            c = pending.pop(key)
+            if c:
+                step(key, c, add)
+    return tuple(out.items())
+
+
+def _regularize_leading_ones(word: Word, c, out: dict) -> None:
+    """``out += c * reg(word)`` for a word ending in 1: ``1^m 0 u -> (-1)^m 0 (1^m ш u)``."""
+    m = _leading(word, 1)
+    if m == 0:
+        out[word] = out.get(word, 0) + c
+        return
+    if m == len(word):  # 1^n: G(1;1)^n / n! = 0
+        return
+    sign = -c if m % 2 else c
+    for w, k in _shuffle_cached((1,) * m, word[m + 1 :]):
+        key = (0,) + w
+        out[key] = out.get(key, 0) + sign * k
+
+
+#: Above this estimated number of elementary steps the closed forms give way
+#: to the level-by-level recursion (see :func:`regularization_cost`).
+CLOSED_FORM_BUDGET = 4_000_000
+
+
+def regularization_cost(word: Word) -> int:
+    """An upper bound of the work of :func:`regularize_word` (elementary steps).
+
+    With ``m`` leading ones, ``n`` trailing zeros and length ``L`` the closed
+    forms below touch at most ``C(L, n) * C(L, m)`` words; words ``1^m 0^n``
+    and convergent words cost nothing.  Callers facing users compare it with a
+    budget before regularizing (:mod:`lowenergy.limits`).
+    """
+    word = tuple(word)
+    n = _trailing(word, 0)
+    m = _leading(word, 1)
+    if not word or m + n == len(word) or (m == 0 and n == 0):
+        return 1
+    return comb(len(word), n) * comb(len(word), m)
+
+
+def _regularize_closed(word: Word) -> tuple:
+    out: dict = {}
+    n = _trailing(word, 0)
+    if n == 0:
+        _regularize_leading_ones(word, Fraction(1), out)
+    else:
+        v, a = word[: len(word) - n - 1], word[len(word) - n - 1]
+        sign = Fraction(-1 if n % 2 else 1)
+        for w, k in _shuffle_cached(v, (0,) * n):
+            _regularize_leading_ones(w + (a,), sign * k, out)
+    return tuple((w, c) for w, c in out.items() if c)
+
+
+@lru_cache(maxsize=20_000)
 def _regularize_cached(word: Word) -> tuple:
-    """Shuffle-regularized ``G(word; 1)`` as convergent words, G(0;1)=G(1;1)=0."""
+    """Shuffle-regularized ``G(word; 1)`` as convergent words, G(0;1)=G(1;1)=0.
+
+    Closed forms instead of the recursion ``0 ш (u 0^(m-1)) = m u 0^m + ...``
+    (whose memoization word by word costs up to 4^length): with ``a = 1``,
+
+    * ``reg(v a 0^n) = (-1)^n (v ш 0^n) a`` removes the trailing zeros,
+    * ``reg(1^m 0 u) = (-1)^m 0 (1^m ш u)`` then the leading ones,
+    * ``reg(1^m 0^n) = -(-1)^(m+n) 0^n 1^m``
+
+    (the standard formulas for regularizing at the two end points; from
+    memory, e.g. Ihara, Kaneko, Zagier 2006, §2; checked in
+    tests/test_words.py against the recursive definition for every word up
+    to length 12).  When :func:`regularization_cost` exceeds
+    :data:`CLOSED_FORM_BUDGET` (massive cancellation, as for 1^9 0^9 with
+    its 24310 x 24310 intermediate words), the recursion is run level by
+    level on the whole combination instead (:func:`_reduce_by_levels`).
+    """
+    if not word:
+        return (((), Fraction(1)),)
     if is_convergent_word(word):
         return ((word, Fraction(1)),)
-    out: dict = {}
+    m, n = _leading(word, 1), _trailing(word, 0)
+    if m + n == len(word):
+        if m == 0 or n == 0:  # 0^n or 1^m: log(1)^n / n! = 0
+            return ()
+        return (((0,) * n + (1,) * m, Fraction(1 if (m + n) % 2 else -1)),)
+    if regularization_cost(word) <= CLOSED_FORM_BUDGET:
+        return _regularize_closed(word)
+    return _reduce_by_levels(word, _shuffle_level, _shuffle_step)
+
+
+def _shuffle_level(word: Word):
+    if is_convergent_word(word):
+        return None
+    tz = _trailing(word, 0)
+    return (tz, 0 if tz else _leading(word, 1))
+
+
+def _shuffle_step(word: Word, c, add) -> None:
     n = len(word)
     if word[-1] == 0:
         # word = u 0^m with u empty or ending in 1.
-        m = 0
-        while m < n and word[n - 1 - m] == 0:
-            m += 1
+        m = _trailing(word, 0)
         if m == n:  # 0^n, n >= 1: log(1)^n / n! = 0
-            return ()
+            return
         u = word[: n - m]
         tail = (0,) * (m - 1)
-        # 0 ш (u 0^(m-1)) = m u0^m + Σ_{i < len(u)} u[:i] 0 u[i:] 0^(m-1)
+        # 0 ш (u 0^(m-1)) = m u0^m + Σ_{i < len(u)} u[:i] 0 u[i:] 0^(m-1),
+        # every other word with m-1 trailing zeros
         for i in range(len(u)):
-            other = u[:i] + (0,) + u[i:] + tail
-            for w, c in _regularize_cached(other):
-                out[w] = out.get(w, 0) - Fraction(c) / m
+            add(u[:i] + (0,) + u[i:] + tail, -c / m)
     else:
         # word = 1^m u with u empty or starting with 0 (and ending with 1).
-        m = 0
-        while m < n and word[m] == 1:
-            m += 1
-        if m == n:
-            return ()
+        m = _leading(word, 1)
+        if m == n:  # 1^n: G(1;1)^n / n! = 0
+            return
         u = word[m:]
         head = (1,) * (m - 1)
-        # 1 ш (1^(m-1) u) = m 1^m u + Σ_{i ≥ 1} 1^(m-1) u[:i] 1 u[i:]
+        # 1 ш (1^(m-1) u) = m 1^m u + Σ_{i ≥ 1} 1^(m-1) u[:i] 1 u[i:],
+        # every other word with m-1 leading ones
         for i in range(1, len(u) + 1):
-            other = head + u[:i] + (1,) + u[i:]
-            for w, c in _regularize_cached(other):
-                out[w] = out.get(w, 0) - Fraction(c) / m
-    return tuple((w, c) for w, c in out.items() if c)
+            add(head + u[:i] + (1,) + u[i:], -c / m)
 
 
 def regularize_word(word: Word) -> Dict[Word, Fraction]:
@@ -324,23 +455,28 @@ def regularize_indices(indices: Indices, scheme: str = "shuffle") -> Dict[Indice
     raise InputError(f"unknown regularization scheme {scheme!r}", hint="use 'shuffle' or 'stuffle'")
 
 
-@lru_cache(maxsize=100_000)
-def _stuffle_regularize_cached(indices: Indices) -> tuple:
+def _stuffle_level(indices: Indices):
     if is_convergent_indices(indices):
-        return ((indices, Fraction(1)),)
-    m = 0
-    while m < len(indices) and indices[m] == 1:
-        m += 1
-    if indices == (1,):
-        return ()  # ζ_*(1) = T, regularized to 0
+        return None
+    return (_leading(indices, 1),)
+
+
+def _stuffle_step(indices: Indices, c, add) -> None:
+    m = _leading(indices, 1)
+    if m == len(indices) == 1:
+        return  # ζ_*(1) = T, regularized to 0
     rest = indices[m:]
     head = (1,) * (m - 1)
-    # (1) * (1^(m-1) rest) = m 1^m rest + (terms with fewer leading ones)
-    out: dict = {}
-    for w, c in _stuffle_cached((1,), head + rest):
-        if w == (1,) * m + rest:
-            assert c == m
+    # (1) * (1^(m-1) rest) = m 1^m rest + (terms with fewer leading ones),
+    # and ζ_*(1) = 0 kills the left side
+    target = (1,) * m + rest
+    for w, d in _stuffle_cached((1,), head + rest):
+        if w == target:
+            assert d == m
             continue
-        for v, d in _stuffle_regularize_cached(w):
-            out[v] = out.get(v, 0) - Fraction(c * d) / m
-    return tuple((w, c) for w, c in out.items() if c)
+        add(w, -c * d / m)
+
+
+@lru_cache(maxsize=20_000)
+def _stuffle_regularize_cached(indices: Indices) -> tuple:
+    return _reduce_by_levels(indices, _stuffle_level, _stuffle_step)

@@ -146,3 +146,84 @@ def test_regularization_is_a_shuffle_homomorphism(u, v):
             for w, m in shuffle(a, b).items():
                 add_into(rhs, regularize_word(w), ca * cb * m)
     assert lhs == rhs
+
+
+# -- the closed forms of the shuffle regularization (issue 15) ----------------
+
+
+def _reference_regularize(word, memo={}):
+    """The defining recursion of the shuffle regularization, written out
+    separately from lowenergy.words: G(0;1) = G(1;1) = 0 and
+    0 ш (u 0^(m-1)) = m u 0^m + (words with m-1 trailing zeros),
+    1 ш (1^(m-1) u) = m 1^m u + (words with m-1 leading ones)."""
+    if word in memo:
+        return memo[word]
+    n = len(word)
+    if not word or (word[0] == 0 and word[-1] == 1):
+        return {word: Fraction(1)}
+    out = {}
+    if word[-1] == 0:
+        m = next(k for k in range(n + 1) if k == n or word[n - 1 - k] != 0)
+        if m < n:
+            u, tail = word[: n - m], (0,) * (m - 1)
+            for i in range(len(u)):
+                add_into(out, _reference_regularize(u[:i] + (0,) + u[i:] + tail), Fraction(-1, m))
+    else:
+        m = next(k for k in range(n + 1) if k == n or word[k] != 1)
+        if m < n:
+            u, head = word[m:], (1,) * (m - 1)
+            for i in range(1, len(u) + 1):
+                add_into(out, _reference_regularize(head + u[:i] + (1,) + u[i:]), Fraction(-1, m))
+    memo[word] = out
+    return out
+
+
+def test_closed_form_regularization_matches_the_defining_recursion():
+    from lowenergy.words import all_words
+
+    for length in range(11):
+        for word in all_words(length):
+            assert regularize_word(word) == _reference_regularize(word), word
+
+
+def test_level_by_level_recursion_matches_the_defining_recursion():
+    # the fallback used beyond CLOSED_FORM_BUDGET
+    from lowenergy.words import _reduce_by_levels, _shuffle_level, _shuffle_step, all_words
+
+    for length in range(1, 10):
+        for word in all_words(length):
+            assert dict(_reduce_by_levels(word, _shuffle_level, _shuffle_step)) == _reference_regularize(word), word
+
+
+def test_regularization_of_one_ones_block_and_one_zeros_block():
+    # reg(1^m 0^n) = -(-1)^(m+n) 0^n 1^m; e.g. G(1,0;1) = -G(0,1;1) (shuffle
+    # product G(1)G(0) = G(1,0) + G(0,1) with G(0;1) = G(1;1) = 0)
+    assert regularize_word((1, 0)) == {(0, 1): Fraction(-1)}
+    assert regularize_word((1,) * 9 + (0,) * 9) == {(0,) * 9 + (1,) * 9: Fraction(-1)}
+    assert regularize_word((1,) * 9 + (0,) * 8) == {(0,) * 8 + (1,) * 9: Fraction(1)}
+
+
+def test_stuffle_regularization_by_the_stuffle_product():
+    # ζ(1)ζ(2) = ζ(1,2) + ζ(2,1) + ζ(3) (stuffle, Hoffman 1997) with ζ_*(1) = 0:
+    # ζ_*(1,2) = -ζ(2,1) - ζ(3)
+    assert regularize_indices((1, 2), "stuffle") == {(2, 1): Fraction(-1), (3,): Fraction(-1)}
+    # ζ(1)ζ(1,2) = 2ζ(1,1,2) + ζ(1,2,1) + ζ(2,2) + ζ(1,3) with ζ_*(1) = 0
+    expected = {}
+    for key, c in ((1, 2, 1), 1), ((2, 2), 1), ((1, 3), 1):
+        add_into(expected, regularize_indices(key, "stuffle"), Fraction(-c, 2))
+    assert regularize_indices((1, 1, 2), "stuffle") == expected
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.lists(st.integers(0, 1), min_size=7, max_size=9).map(tuple),
+       st.lists(st.integers(0, 1), min_size=1, max_size=3).map(tuple))
+def test_closed_form_is_a_shuffle_homomorphism_on_longer_words(u, v):
+    lhs = {}
+    for w, m in shuffle(u, v).items():
+        add_into(lhs, regularize_word(w), m)
+    rhs = {}
+    for a, ca in regularize_word(u).items():
+        for b, cb in regularize_word(v).items():
+            for w, m in shuffle(a, b).items():
+                add_into(rhs, regularize_word(w), ca * cb * m)
+    assert lhs == rhs

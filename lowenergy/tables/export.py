@@ -52,7 +52,7 @@ import os
 import re
 import tempfile
 from dataclasses import dataclass
-from decimal import Decimal, InvalidOperation
+from decimal import Decimal, DecimalException, InvalidOperation
 from fractions import Fraction
 from pathlib import Path
 from typing import Dict, List, Optional, Sequence, Tuple, Union
@@ -60,6 +60,7 @@ from typing import Dict, List, Optional, Sequence, Tuple, Union
 import mpmath
 
 from ..errors import InputError, LowEnergyError, ParseError
+from ..limits import MAX_CSV_BYTES, MAX_CSV_ROWS, MAX_DECIMAL_EXPONENT, MAX_NUMERIC_DIGITS, MAX_NUMERIC_WORK
 from ..parse import Mul, Num, Pow, Sym, parse_expression
 from ..expansion.result import u_pole_name
 from ..zeta.element import MZV
@@ -108,7 +109,7 @@ MAX_DIGITS = 1000
 #: Largest order (in absolute value) :func:`read_csv` accepts.
 MAX_ORDER = 1000
 _MAGIC = "# lowenergy coefficient table"
-_MAX_CSV_BYTES = 200_000_000
+_MAX_CSV_BYTES = MAX_CSV_BYTES
 _IDENT = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 _UPOLE_NAME = re.compile(r"c\[\s*(-?\d{1,6})\s*,\s*0\s*,\s*(-?\d{1,6})\s*\]\Z")
 
@@ -418,6 +419,9 @@ _REQUIRED_HEADER = ("format", "variables", "parameters", "order", "basis")
 _REQUIRED_COLUMNS = ("name", "kind", "i", "j", "label", "param")
 
 
+_NUMERIC_CELL = re.compile(r"[+-]?[0-9]+(\.[0-9]*)?([eE][+-]?[0-9]{1,9})?|[+-]?\.[0-9]+([eE][+-]?[0-9]{1,9})?", re.ASCII)
+
+
 class _CsvReader:
     def __init__(self, path: PathLike, numeric: bool = False) -> None:
         self.path = str(os.fspath(path))
@@ -426,6 +430,7 @@ class _CsvReader:
         self.exact_rows = 0
         self.numeric_rows = 0
         self.numeric_digits: Optional[int] = None
+        self.numeric_work = 0
 
     def error(self, message: str, line: Optional[int], term: Optional[str] = None, hint: Optional[str] = None,
               cls=ParseError) -> LowEnergyError:
@@ -438,7 +443,8 @@ class _CsvReader:
         try:
             size = os.path.getsize(self.path)
             if size > _MAX_CSV_BYTES:
-                raise InputError(f"file too large ({size} bytes)", source=self.path)
+                raise InputError(f"file too large ({size} bytes)", source=self.path,
+                                 hint=f"coefficient tables have at most {_MAX_CSV_BYTES} bytes")
             with open(self.path, "rb") as fh:
                 data = fh.read()
         except OSError as err:
@@ -550,15 +556,33 @@ class _CsvReader:
         text = cell.strip()
         if not text:
             return
+        if text.lstrip("+-").lower() in ("nan", "snan", "inf", "infinity"):
+            raise self.error("column 'numeric' is not a finite number", line, cell)
+        if not _NUMERIC_CELL.fullmatch(text):
+            # also keeps Decimal away from NaN, Infinity, '1_000' and other digits
+            raise self.error("column 'numeric' is not a decimal number", line, cell,
+                             hint="write a decimal such as -0.75917 or 1.2e-5, or leave the cell empty")
         try:
             dec = Decimal(text)
-        except InvalidOperation:
+        except DecimalException:  # pragma: no cover - the pattern admits decimals only
             raise self.error("column 'numeric' is not a decimal number", line, cell) from None
-        if not dec.is_finite():
-            raise self.error("column 'numeric' is not a finite number", line, cell)
         sig = max(len(dec.as_tuple().digits), 1)
-        if sig > MAX_DIGITS:
-            raise self.error(f"column 'numeric' has more than {MAX_DIGITS} digits", line, cell, cls=InputError)
+        if sig > MAX_NUMERIC_DIGITS:
+            raise self.error(f"column 'numeric' has more than {MAX_NUMERIC_DIGITS} digits", line, cell,
+                             cls=InputError)
+        if abs(dec.adjusted()) > MAX_DECIMAL_EXPONENT:
+            raise self.error(f"column 'numeric' has a decimal exponent beyond {MAX_DECIMAL_EXPONENT}", line, cell,
+                             cls=InputError)
+        self.numeric_work += (sig + 5) ** 2
+        if self.numeric_work > MAX_NUMERIC_WORK:
+            raise self.error(
+                "checking the 'numeric' column needs too many digits in total "
+                f"(budget: sum of squared digits {MAX_NUMERIC_WORK})",
+                line,
+                cell,
+                hint="leave the 'numeric' cells empty or write fewer digits",
+                cls=InputError,
+            )
         computed = Decimal(mpmath.nstr(value.numeric(sig + 5), sig + 5, min_fixed=-mpmath.inf, max_fixed=mpmath.inf))
         ulp = Decimal(1).scaleb(dec.adjusted() - sig + 1)
         if abs(computed - dec) > ulp:
@@ -598,9 +622,11 @@ class _CsvReader:
         for key in ("title", "source"):
             if key in fields:
                 value, kline = fields[key]
+                if value and not (value.startswith('"') and value.endswith('"')):
+                    raise self.error(f"header field {key!r} is not a quoted string", kline, value)
                 try:
                     decoded = json.loads(value) if value else ""
-                except ValueError:
+                except (ValueError, RecursionError):
                     raise self.error(f"header field {key!r} is not a quoted string", kline, value) from None
                 if not isinstance(decoded, str):
                     raise self.error(f"header field {key!r} is not a quoted string", kline, value)
@@ -613,6 +639,7 @@ class _CsvReader:
         upoles: Dict[Tuple[int, int], Dict] = {}
         seen: Dict[tuple, int] = {}
         previous = 0
+        rows_read = 0
         try:
             for cells in reader:
                 line = offset + previous + 1
@@ -641,6 +668,10 @@ class _CsvReader:
                         ",".join(cells),
                         hint="quote cells that contain commas",
                     )
+                rows_read += 1
+                if rows_read > MAX_CSV_ROWS:
+                    raise self.error(f"more than {MAX_CSV_ROWS} rows", line, cls=InputError,
+                                     hint="coefficient tables are limited in size; split the table")
                 row = dict(zip(header_row, cells))
                 self.row(row, line, variables, parameters, order, basis, coefficients, seen, evaluate, upoles)
         except csv.Error as err:

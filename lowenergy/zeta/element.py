@@ -30,7 +30,16 @@ from typing import Dict, Iterable, Iterator, Mapping, Tuple, Union
 import mpmath
 
 from ..errors import InputError, RegularizationError
-from ..words import Indices, is_convergent_indices, regularize_indices, regularize_word, word_to_indices
+from ..limits import MAX_REGULARIZATION_WORK, MAX_STUFFLE_WEIGHT, check_weight
+from ..words import (
+    Indices,
+    indices_to_word,
+    is_convergent_indices,
+    regularization_cost,
+    regularize_indices,
+    regularize_word,
+    word_to_indices,
+)
 from .reduction import Monomial
 from .table import TableStore, default_store
 
@@ -70,6 +79,14 @@ class MZV:
         self._terms = {k: v for k, v in clean.items() if v}
         self._hash = None
 
+    @classmethod
+    def _canonical(cls, terms: Dict[Monomial, Fraction]) -> "MZV":
+        """Wrap a dict whose monomials are already sorted (no copy, no sorting)."""
+        out = cls.__new__(cls)
+        out._terms = {k: v for k, v in terms.items() if v}
+        out._hash = None
+        return out
+
     # -- construction --------------------------------------------------------
     @classmethod
     def rational(cls, q: Rational) -> "MZV":
@@ -99,12 +116,12 @@ class MZV:
         out = dict(self._terms)
         for k, v in o._terms.items():
             out[k] = out.get(k, 0) + v
-        return MZV(out)
+        return MZV._canonical(out)
 
     __radd__ = __add__
 
     def __neg__(self) -> "MZV":
-        return MZV({k: -v for k, v in self._terms.items()})
+        return MZV._canonical({k: -v for k, v in self._terms.items()})
 
     def __pos__(self) -> "MZV":
         return self
@@ -123,15 +140,15 @@ class MZV:
 
     def __mul__(self, other):
         if isinstance(other, (int, Fraction)) and not isinstance(other, bool):
-            return MZV({k: v * other for k, v in self._terms.items()})
+            return MZV._canonical({k: Fraction(v * other) for k, v in self._terms.items()})
         if not isinstance(other, MZV):
             return NotImplemented
         out: Dict[Monomial, Fraction] = {}
         for ka, va in self._terms.items():
             for kb, vb in other._terms.items():
-                k = _mono_mul(ka, kb)
+                k = _mono_mul(ka, kb) if ka and kb else (ka or kb)
                 out[k] = out.get(k, 0) + va * vb
-        return MZV(out)
+        return MZV._canonical(out)
 
     __rmul__ = __mul__
 
@@ -310,12 +327,26 @@ def zeta(*indices: int, regularize: str | None = None, store: TableStore | None 
             raise InputError(f"MZV indices must be positive integers, got {n!r}")
     if not idx:
         return MZV.one()
+    weight = sum(idx)
+    if len(idx) > 1:  # single zetas need no table at any weight
+        check_weight(weight)
     if not is_convergent_indices(idx):
         if regularize is None:
             raise RegularizationError(
                 f"zeta{idx} diverges (first index 1)",
                 hint="ask for a regularization, e.g. --regularize shuffle",
             )
+        if regularize == "stuffle" and weight > MAX_STUFFLE_WEIGHT:
+            raise InputError(
+                f"stuffle regularization of a divergent MZV of weight {weight} is beyond the limit of "
+                f"{MAX_STUFFLE_WEIGHT}",
+                hint=f"divergent MZVs up to weight {MAX_STUFFLE_WEIGHT} can be stuffle-regularized; "
+                "shuffle regularization reaches further",
+            )
+        if regularize == "shuffle":
+            _check_regularization_cost(indices_to_word(idx))
+        # the tables of this weight are needed anyway: check before the work
+        _require(weight, store)
         out = MZV()
         for conv, c in regularize_indices(idx, regularize).items():
             out = out + MZV(store.reduction(conv)) * c
@@ -323,11 +354,36 @@ def zeta(*indices: int, regularize: str | None = None, store: TableStore | None 
     return MZV(store.reduction(idx))
 
 
+def _require(weight: int, store: TableStore) -> None:
+    """Raise the store's TableError unless the tables reach ``weight``."""
+    if weight >= 2:
+        store.reduction((weight,))
+
+
+def _check_regularization_cost(word) -> None:
+    cost = regularization_cost(word)
+    if cost > MAX_REGULARIZATION_WORK:
+        raise InputError(
+            f"regularizing this word of length {len(word)} needs about {cost} steps, beyond the budget of "
+            f"{MAX_REGULARIZATION_WORK}",
+            hint="fewer leading 1s and trailing 0s make it cheaper; every word up to length 12 is within the budget",
+        )
+
+
 def g_value(word, store: TableStore | None = None) -> MZV:
     """Shuffle-regularized ``G(a1, ..., an; 1)`` for a word over {0, 1}."""
     store = store or default_store()
+    word = tuple(word)
+    for a in word:
+        if a not in (0, 1):
+            raise InputError(f"letters of words are 0 and 1, got {a!r}")
+    if len(set(word)) <= 1:  # G(0^n; 1) = G(1^n; 1) = 0 for n >= 1, G(; 1) = 1
+        return MZV.one() if not word else MZV()
+    check_weight(len(word), "G word of")
+    _check_regularization_cost(word)
+    _require(len(word), store)
     out: Dict[Monomial, Fraction] = {}
-    for w, c in regularize_word(tuple(word)).items():
+    for w, c in regularize_word(word).items():
         idx = word_to_indices(w)
         sign = -1 if len(idx) % 2 else 1
         for mono, d in store.reduction(idx).items():

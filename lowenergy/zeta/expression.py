@@ -29,7 +29,10 @@ from .table import TableStore
 
 __all__ = ["evaluate", "evaluate_tree", "sv_of_tree", "zeta_indices", "MAX_EXPONENT"]
 
-MAX_EXPONENT = 64
+from ..limits import MAX_EXPONENT, MAX_MZV_PRODUCT_WORK, MAX_RATIONAL_BITS, MAX_TERMS, check_rational
+
+#: Highest total power of pi in one term (pi^(2k) becomes (6*zeta(2))^k).
+MAX_PI_POWER = 2 * MAX_EXPONENT
 
 # An intermediate value: {power of pi: MZV}
 PiValue = Dict[int, MZV]
@@ -44,22 +47,37 @@ def _add(a: PiValue, b: PiValue, sign: int = 1) -> PiValue:
     return out
 
 
-MAX_TERMS = 200_000
-
-
-def _mul(a: PiValue, b: PiValue) -> PiValue:
+def _mul(a: PiValue, b: PiValue, budget: list | None = None) -> PiValue:
     size = sum(len(x.as_dict()) for x in a.values()) * sum(len(x.as_dict()) for x in b.values())
     if size > MAX_TERMS:
         raise InputError(f"the expanded product would have more than {MAX_TERMS} terms")
+    if budget is not None:
+        # the work budget for products: counted before each product is formed
+        budget[0] += size
+        if budget[0] > MAX_MZV_PRODUCT_WORK:
+            raise InputError(
+                f"evaluating the products needs more than {MAX_MZV_PRODUCT_WORK} multiplications of terms",
+                hint="simplify the expression (e.g. lower powers of long sums)",
+            )
     out: PiValue = {}
     for pa, xa in a.items():
         for pb, xb in b.items():
+            if pa + pb > MAX_PI_POWER:
+                raise InputError(f"power of pi above {MAX_PI_POWER}")
             y = out.get(pa + pb, MZV()) + xa * xb
             if y:
                 out[pa + pb] = y
             else:
                 out.pop(pa + pb, None)
     return out
+
+
+def _checked(v: PiValue) -> PiValue:
+    """Refuse rationals beyond :data:`~lowenergy.limits.MAX_RATIONAL_BITS` bits."""
+    for x in v.values():
+        for c in x.as_dict().values():
+            check_rational(c)
+    return v
 
 
 def _rational_of(v: PiValue) -> Fraction | None:
@@ -185,6 +203,8 @@ def sv_of_tree(node: Call, fail, *, regularize: str | None = None, store: TableS
 def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStore | None = None) -> MZV:
     """Evaluate a parsed tree (iteratively; see :func:`evaluate`)."""
 
+    budget = [0]
+
     def leaf(node: Node) -> PiValue:
         if isinstance(node, Num):
             return {0: MZV.rational(node.value)} if node.value else {}
@@ -208,14 +228,20 @@ def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStor
         if isinstance(node, Sub):
             return _add(vals[0], vals[1], -1)
         if isinstance(node, Mul):
-            return _mul(vals[0], vals[1])
+            try:
+                return _checked(_mul(vals[0], vals[1], budget))
+            except LowEnergyError as err:
+                raise err.located(column=node.col)
         if isinstance(node, Div):
             q = _rational_of(vals[1])
             if q is None:
                 raise _fail(node.right, "division by a non-rational quantity", "divide by rational numbers only")
             if q == 0:
                 raise _fail(node.right, "division by zero")
-            return {p: x / q for p, x in vals[0].items()}
+            try:
+                return _checked({p: x / q for p, x in vals[0].items()})
+            except LowEnergyError as err:
+                raise err.located(column=node.col)
         if isinstance(node, Pow):
             e = _rational_of(vals[1])
             if e is None or e.denominator != 1:
@@ -229,10 +255,15 @@ def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStor
                     raise _fail(node, "negative powers are allowed for rational numbers only")
                 if q == 0:
                     raise _fail(node, "division by zero")
+                if abs(n) * max(q.numerator.bit_length(), q.denominator.bit_length()) > MAX_RATIONAL_BITS:
+                    raise _fail(node, f"number too large (more than {MAX_RATIONAL_BITS} bits)")
                 return {0: MZV.rational(q ** n)}
             res = {0: MZV.one()}
-            for _ in range(n):
-                res = _mul(res, vals[0])
+            try:
+                for _ in range(n):
+                    res = _checked(_mul(res, vals[0], budget))
+            except LowEnergyError as err:
+                raise err.located(column=node.col)
             return res
         raise _fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
 

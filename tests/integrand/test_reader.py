@@ -238,9 +238,9 @@ def test_long_flat_sum_is_not_recursive():
     text = "x^(-s-1)*(" + "+".join(f"s^{k % 7}" for k in range(12000)) + ")"
     (term,) = terms_from_expression(text)
     assert sum(term.coefficient.values(), MZV()) == R(12000)
-    text = "+".join(["log(x)*s"] * 10000)
+    text = "+".join(["log(x)*s"] * 4000)
     (term,) = terms_from_expression(text)
-    assert term.coefficient == {(1, 0): R(10000)}
+    assert term.coefficient == {(1, 0): R(4000)}
 
 
 # -- numerical checks of the conversions -------------------------------------
@@ -340,7 +340,7 @@ BAD = [
     ("x as a function", expr_file("x(2)"), InputError, "not a function", 1, 14),
     ("log as a symbol", expr_file("log*x"), InputError, "is a function", 1, 14),
     ("duplicate key", f'integrand = "{KN}"\nintegrand = "x"\n', ParseError, "malformed TOML", None, None),
-    ("too many terms", expr_file("(s+t+1)^40*(s+t+1)^40"), InputError, f"exceed {MAX_TERMS} terms", 1, None),
+    ("too many terms", expr_file("(s+t+1)^30*(s+t+1)^30"), InputError, f"exceed {MAX_TERMS} terms", 1, None),
     ("multi-line error position", 'integrand = """\n  x^(-s-1)*\n  (1-x)^(-t-1)\n  * Li(0, x)"""\n', InputError, "positive integer", 4, 8),
 ]
 
