@@ -1,0 +1,322 @@
+"""Expansion series as exact vectors over the MZV monomial basis (the fast path).
+
+:func:`lowenergy.expansion.engine.raw_series` builds one MZV object per
+Laurent coefficient and sums word values one word at a time.  Here the same
+numbers are computed in bulk:
+
+* **Shuffle values.**  The coefficient of ``(cv)^m (dv')^n`` needs
+  ``V(w, m, n) = Σ_u e(w, u) (p0·G(0u; 1) - p1·G(1u; 1))`` over the words u
+  with ``m + #0(w)`` zeros and ``n + #1(w)`` ones, ``e(w, u)`` the number of
+  ways w sits in u as a subsequence (METHOD.md §4).  For all words u of a
+  length L at once, ``e(w, ·)`` is one vectorized recursion over the letters
+  of u (shared between words with a common prefix); the sums are matrix
+  products of these counts with the word-value rows of
+  :mod:`lowenergy.expansion.values` modulo 26-bit primes, done in float64
+  with every partial sum below 2^53 (so exact), grouped by the number of ones
+  in u.  The exact rationals are recovered by Chinese remaindering and
+  rational reconstruction, adding primes until the reconstruction is
+  confirmed by one further prime (the rule of
+  :class:`~lowenergy.expansion.values.ModularWordValues`).
+* **Positive shifts by integration by parts.**  With
+  ``J(a, b) = ∫_0^1 x^(a-1+α) (1-x)^(b-1+β) G(w; x) dx`` (α, β linear in s, t),
+  ``∫_0^1 d[x^(a+α) (1-x)^(b+β) G(w; x)] = 0`` for ``a, b ≥ 0`` (in the
+  convergent region; both sides are meromorphic) gives, with ``w = w1 w'``,
+  ``(a+α) J(a,b+1) - (b+β) J(a+1,b) + [w1=0] J_{w'}(a,b+1) - [w1=1] J_{w'}(a+1,b) = 0``,
+  and ``J(a,b) = J(a+1,b) + J(a,b+1)`` (multiply the integrand by x + (1-x)).
+  Eliminating one of the two unknowns:
+
+      (a+b+α+β) J(a+1,b) = (a+α) J(a,b) + [w1=0] J_{w'}(a,b+1) - [w1=1] J_{w'}(a+1,b)
+      (a+b+α+β) J(a,b+1) = (b+β) J(a,b) - [w1=0] J_{w'}(a,b+1) + [w1=1] J_{w'}(a+1,b)
+
+  For ``a + b ≥ 1`` the factor ``a+b+α+β`` is an invertible power series, so
+  every ``J(A, B)`` with ``A + B ≥ 2`` follows from the cheap cases
+  ``J(1, 0)``, ``J(0, 1)`` of w and its suffixes without any loss of order —
+  instead of integrating ``x^j G(u; x)`` for every word u of every shuffle.
+
+A vector is a python-flint ``fmpq_poly`` whose coefficient k is the
+coordinate on the monomial in column k of a :class:`ColumnSpace`; a series is
+``{(i, j): vector}``.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from fractions import Fraction
+from typing import Dict, Iterable, List, Optional, Tuple
+
+import numpy as np
+
+from ..zeta.element import MZV, _mono_mul
+from ..zeta.reduction import Monomial, _rational_reconstruct, monomials_of_weight
+from ..zeta.table import TableStore
+
+__all__ = ["ColumnSpace", "shuffle_values", "embedding_counts", "VSeries"]
+
+Word = Tuple[int, ...]
+Mode = Tuple[int, int]  # (p0, p1): weights of the rows G(0u; 1) and -G(1u; 1)
+VSeries = Dict[Tuple[int, int], "object"]  # {(i, j): fmpq_poly}
+
+
+def _flint():
+    import flint
+
+    return flint
+
+
+class ColumnSpace:
+    """Columns for the MZV monomials of all weights (one space per table store).
+
+    A monomial gets a column the first time it is met; ``basis_cols(W)`` lists
+    the columns of the monomial basis of weight W in the order of the
+    word-value rows.
+    """
+
+    def __init__(self, store: TableStore) -> None:
+        self.store = store
+        self.index: Dict[Monomial, int] = {}
+        self.monos: List[Monomial] = []
+        self._bases: Dict[int, List[int]] = {}
+        self._times: Dict[Tuple[Monomial, int], int] = {}
+
+    def col(self, mono: Monomial) -> int:
+        got = self.index.get(mono)
+        if got is None:
+            got = len(self.monos)
+            self.index[mono] = got
+            self.monos.append(mono)
+        return got
+
+    def basis_cols(self, weight: int) -> List[int]:
+        got = self._bases.get(weight)
+        if got is None:
+            gens = self.store.all_generators(weight) if weight >= 2 else []
+            basis = monomials_of_weight(gens, weight) if weight else [()]
+            got = [self.col(m) for m in basis]
+            self._bases[weight] = got
+        return got
+
+    def times(self, mono: Monomial, col: int) -> int:
+        """Column of ``mono · (monomial of col)`` (generators commute freely)."""
+        key = (mono, col)
+        got = self._times.get(key)
+        if got is None:
+            got = self.col(_mono_mul(mono, self.monos[col])) if mono else col
+            self._times[key] = got
+        return got
+
+    def vector(self, x: MZV):
+        """An MZV as a vector."""
+        coeffs: Dict[int, Fraction] = {self.col(m): c for m, c in x.as_dict().items()}
+        return poly_from(coeffs)
+
+    def to_mzv(self, vec) -> MZV:
+        terms = {}
+        for k, c in enumerate(vec.coeffs()):
+            if c:
+                terms[self.monos[k]] = Fraction(int(c.p), int(c.q))
+        return MZV.from_canonical(terms)
+
+
+def poly_from(coeffs: Dict[int, Fraction]):
+    flint = _flint()
+    if not coeffs:
+        return flint.fmpq_poly()
+    out = [0] * (max(coeffs) + 1)
+    for k, c in coeffs.items():
+        out[k] = flint.fmpq(c.numerator, c.denominator) if isinstance(c, Fraction) else c
+    return flint.fmpq_poly(out)
+
+
+# ---------------------------------------------------------------------------
+# subsequence counts for all words of one length
+# ---------------------------------------------------------------------------
+
+def embedding_counts(words: Iterable[Word], length: int) -> Dict[Word, np.ndarray]:
+    """``{w: e}`` with ``e[k]`` = number of ways w occurs as a subsequence of the
+    word of ``length`` letters whose binary digits are k (first letter = highest bit).
+
+    Walks the prefix tree of the words: the counts for a prefix of length r over
+    all prefixes of u are one cumulative sum of those for length r - 1.
+
+    >>> e = embedding_counts([(0, 1)], 3)[(0, 1)]
+    >>> [int(e[k]) for k in (0b001, 0b011, 0b101, 0b010)]   # 001, 011, 101, 010
+    [2, 2, 1, 1]
+    """
+    words = sorted(set(tuple(w) for w in words))
+    n = 1 << length
+    idx = np.arange(n, dtype=np.int64)
+    # letter[i] is the (i+1)-th letter of every u, i = 0 .. length-1
+    letters = np.empty((length, n), dtype=np.bool_)
+    for i in range(length):
+        letters[i] = ((idx >> (length - 1 - i)) & 1).astype(np.bool_)
+    out: Dict[Word, np.ndarray] = {}
+    wanted = set(words)
+    # H[i] = embeddings of the current prefix into u[:i], i = 0 .. length
+    root = np.ones((length + 1, n), dtype=np.int64)
+    children: Dict[Word, List[int]] = defaultdict(list)
+    for w in words:
+        for r in range(1, len(w) + 1):
+            if w[r - 1] not in children[w[: r - 1]]:
+                children[w[: r - 1]].append(w[r - 1])
+
+    def walk(prefix: Word, table: np.ndarray) -> None:
+        if prefix in wanted:
+            out[prefix] = table[length].copy()
+        for a in sorted(children.get(prefix, ())):
+            if len(prefix) + 1 > length:
+                continue
+            step = np.zeros_like(table)
+            mask = letters if a == 1 else ~letters
+            # new[i] = Σ_{i' ≤ i, u_{i'} = a} old[i' - 1]
+            np.multiply(table[:-1], mask, out=step[1:])
+            np.cumsum(step, axis=0, out=step)
+            walk(prefix + (a,), step)
+
+    walk((), root)
+    for w in words:
+        if w not in out:  # longer than the words of this length
+            out[w] = np.zeros(n, dtype=np.int64)
+    return out
+
+
+# ---------------------------------------------------------------------------
+# bulk shuffle values
+# ---------------------------------------------------------------------------
+
+def _popcount_order(length: int):
+    n = 1 << length
+    idx = np.arange(n, dtype=np.int64)
+    pc = np.zeros(n, dtype=np.int64)
+    for b in range(length):
+        pc += (idx >> b) & 1
+    order = np.argsort(pc, kind="stable")
+    bounds = np.searchsorted(pc[order], np.arange(length + 2))
+    return order, bounds
+
+
+class _Reconstruction:
+    """Residues of one integer-combination vector modulo growing sets of primes."""
+
+    __slots__ = ("crt", "modulus", "count", "previous", "done")
+
+    def __init__(self) -> None:
+        self.crt: Optional[List[int]] = None
+        self.modulus = 1
+        self.count = 0
+        self.previous: Optional[List[Fraction]] = None
+        self.done: Optional[List[Fraction]] = None
+
+    def add(self, p: int, residues: np.ndarray) -> None:
+        vec = [int(v) for v in residues]
+        if self.crt is None:
+            self.crt = vec
+        else:
+            inv = pow(self.modulus, -1, p)
+            m = self.modulus
+            self.crt = [r + m * (((v - r) * inv) % p) for r, v in zip(self.crt, vec)]
+        self.modulus *= p
+        self.count += 1
+        if self.count < 2:
+            return
+        coords: List[Fraction] = []
+        for r in self.crt:
+            if r == 0:
+                coords.append(Fraction(0))
+                continue
+            q = _rational_reconstruct(r, self.modulus)
+            if q is None:
+                self.previous = None
+                return
+            coords.append(q)
+        if coords == self.previous:
+            self.done = coords
+        self.previous = coords
+
+
+def shuffle_values(
+    requests: Iterable[Tuple[Word, int, Mode]],
+    store: TableStore,
+    space: ColumnSpace,
+) -> Dict[Tuple[Word, int, int, Mode], object]:
+    """``V(w, m, n)`` (see the module docstring) for every request ``(w, total_max, mode)``.
+
+    Returns ``{(w, total, n, mode): vector}`` for ``0 ≤ n ≤ total ≤ total_max``
+    (``m = total - n``); ``mode = (p0, p1)``.
+    """
+    from ..errors import LowEnergyError
+    from ..zeta.motivic import SMALL_PRIMES
+    from .values import word_values
+
+    by_length: Dict[int, Dict[Mode, set]] = defaultdict(lambda: defaultdict(set))
+    for w, total_max, mode in requests:
+        w = tuple(w)
+        for total in range(total_max + 1):
+            by_length[len(w) + total][mode].add(w)
+    if not by_length:
+        return {}
+    states: Dict[Tuple[Word, int, int, Mode], _Reconstruction] = {}
+    plans = []
+    for length in sorted(by_length):
+        order, bounds = _popcount_order(length)
+        table = word_values(length + 1, store, exact=False)
+        cols = space.basis_cols(length + 1)
+        for mode, words in sorted(by_length[length].items()):
+            words = sorted(words)
+            counts = embedding_counts(words, length)
+            emb = np.stack([counts[w] for w in words])[:, order].astype(np.float64)
+            biggest = float(emb.max()) if emb.size else 0.0
+            for w in words:
+                total = length - len(w)
+                for n in range(total + 1):
+                    states[(w, total, n, mode)] = _Reconstruction()
+            plans.append((length, mode, words, emb, biggest, order, bounds, table, cols))
+    for p in SMALL_PRIMES:
+        pending = [plan for plan in plans if any(
+            states[(w, plan[0] - len(w), n, plan[1])].done is None
+            for w in plan[2] for n in range(plan[0] - len(w) + 1))]
+        if not pending:
+            break
+        half = p // 2
+        for length, mode, words, emb, biggest, order, bounds, table, cols in pending:
+            rows = np.asarray(table._rows(p), dtype=np.int64)
+            n_u = 1 << length
+            p0, p1 = mode
+            diff = np.zeros((n_u, rows.shape[1]), dtype=np.int64)
+            if p0:
+                diff += rows[:n_u]
+            if p1:
+                diff -= rows[n_u:]
+            diff %= p
+            diff[diff > half] -= p
+            diff = diff[order].astype(np.float64)
+            # every partial sum stays below 2^53: |count| ≤ biggest, |entry| ≤ p/2
+            chunk = max(1, int(2.0 ** 52 // max(1.0, biggest * (half + 1))))
+            ones_w = [sum(w) for w in words]
+            for c in range(length + 1):
+                lo, hi = int(bounds[c]), int(bounds[c + 1])
+                if lo == hi:
+                    continue
+                rows_needed = [k for k, w in enumerate(words) if 0 <= c - ones_w[k] <= length - len(w)]
+                if not rows_needed:
+                    continue
+                sub = emb[rows_needed]
+                acc = np.zeros((len(rows_needed), diff.shape[1]), dtype=np.int64)
+                for start in range(lo, hi, chunk):
+                    stop = min(hi, start + chunk)
+                    part = sub[:, start:stop] @ diff[start:stop]
+                    acc = (acc + np.rint(part).astype(np.int64) % p) % p
+                for r, k in enumerate(rows_needed):
+                    w = words[k]
+                    st = states[(w, length - len(w), c - ones_w[k], mode)]
+                    if st.done is None:
+                        st.add(p, acc[r])
+    out = {}
+    for (w, total, n, mode), st in states.items():
+        if st.done is None:
+            raise LowEnergyError(
+                f"exact reconstruction of a weight-{len(w) + total + 1} shuffle value failed with "
+                f"{len(SMALL_PRIMES)} primes"
+            )
+        cols = space.basis_cols(len(w) + total + 1)
+        out[(w, total, n, mode)] = poly_from({cols[k]: q for k, q in enumerate(st.done) if q})
+    return out
