@@ -30,7 +30,7 @@ from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from .engine import _split, endpoint_coefficients_at_one, raw_series
 from .result import Expansion
-from .vectors import ColumnSpace, VSeries, poly_from, shuffle_values
+from .vectors import ColumnSpace, VSeries, fraction, shuffle_values
 
 __all__ = ["expand_bulk", "series_vectors", "SeriesPlan"]
 
@@ -332,12 +332,14 @@ def expand_bulk(
 
     # rows: (series, MZV monomial m); per s^k t^l: {parameter monomial: {row: rational}}
     rows: Dict[Tuple[SeriesKey, tuple], int] = {}
-    groups: Dict[Tuple[int, int], Dict[tuple, Dict[int, Fraction]]] = defaultdict(lambda: defaultdict(dict))
+    pindex: Dict[tuple, int] = {}
+    groups: Dict[Tuple[int, int], Dict[int, Dict[int, Fraction]]] = defaultdict(lambda: defaultdict(dict))
     for term, key in used:
         for ckey, coef in term.coefficient.items():
             kl = (ckey[0], ckey[1])
             pkey = tuple(ckey[2 : 2 + nparams])
-            slot = groups[kl][pkey]
+            pi = pindex.setdefault(pkey, len(pindex))
+            slot = groups[kl][pi]
             for mono, r in coef.as_dict().items():
                 row = rows.setdefault((key, mono), len(rows))
                 slot[row] = slot.get(row, 0) + r
@@ -359,12 +361,13 @@ def expand_bulk(
                     entries[f] = c
         row_entries[row] = entries
 
-    acc: Dict[Tuple[int, int], Dict[tuple, Dict[int, object]]] = defaultdict(lambda: defaultdict(dict))
+    # acc[(Laurent monomial, parameter index)] = {column: fmpq}
+    acc: Dict[Tuple[Tuple[int, int], int], Dict[int, object]] = {}
     for (k, l), by_param in groups.items():
-        pkeys = [p for p, r in by_param.items() if any(r.values())]
-        if not pkeys:
+        pis = [pi for pi, r in by_param.items() if any(r.values())]
+        if not pis:
             continue
-        used_rows = sorted({row for p in pkeys for row, r in by_param[p].items() if r})
+        used_rows = sorted({row for pi in pis for row, r in by_param[pi].items() if r})
         # keep only columns whose Laurent monomial lands within the order after the shift
         cols = sorted({f for row in used_rows for f in row_entries[row]
                        if flat_keys[f][0][0] + flat_keys[f][0][1] + k + l <= order})
@@ -372,11 +375,11 @@ def expand_bulk(
             continue
         col_pos = {f: n for n, f in enumerate(cols)}
         row_pos = {row: n for n, row in enumerate(used_rows)}
-        rmat = flint.fmpq_mat(len(pkeys), len(used_rows))
-        for pi, p in enumerate(pkeys):
-            for row, r in by_param[p].items():
+        rmat = flint.fmpq_mat(len(pis), len(used_rows))
+        for n, pi in enumerate(pis):
+            for row, r in by_param[pi].items():
                 if r:
-                    rmat[pi, row_pos[row]] = flint.fmpq(r.numerator, r.denominator)
+                    rmat[n, row_pos[row]] = flint.fmpq(r.numerator, r.denominator)
         zmat = flint.fmpq_mat(len(used_rows), len(cols))
         for row in used_rows:
             ri = row_pos[row]
@@ -385,25 +388,26 @@ def expand_bulk(
                 if n is not None:
                     zmat[ri, n] = c
         prod = (rmat * zmat).entries()
+        targets = [((flat_keys[f][0][0] + k, flat_keys[f][0][1] + l), flat_keys[f][1]) for f in cols]
         width = len(cols)
-        for pi, p in enumerate(pkeys):
-            base = pi * width
-            for n in range(width):
-                y = prod[base + n]
+        for n_p, pi in enumerate(pis):
+            base = n_p * width
+            for n, y in enumerate(prod[base : base + width]):
                 if y:
-                    (i, j), col = flat_keys[cols[n]]
-                    target = acc[(i + k, j + l)][p]
-                    got = target.get(col)
-                    target[col] = y if got is None else got + y
+                    ij, col = targets[n]
+                    target = acc.get((ij, pi))
+                    if target is None:
+                        acc[(ij, pi)] = {col: y}
+                    else:
+                        got = target.get(col)
+                        target[col] = y if got is None else got + y
+    pkeys = list(pindex)
+    monos = space.monos
     result: Dict[Tuple[int, int], Dict[Tuple[int, ...], MZV]] = {}
-    for ij in sorted(acc):
-        slot: Dict[Tuple[int, ...], MZV] = {}
-        for p in sorted(acc[ij]):
-            terms_ = {space.monos[col]: Fraction(int(y.p), int(y.q)) for col, y in acc[ij][p].items() if y}
-            if terms_:
-                slot[p] = MZV.from_canonical(terms_)
-        if slot:
-            result[ij] = slot
+    for ij, pi in sorted(acc, key=lambda item: (item[0], pkeys[item[1]])):
+        terms_ = {monos[col]: fraction(y) for col, y in acc[(ij, pi)].items() if y}
+        if terms_:
+            result.setdefault(ij, {})[pkeys[pi]] = MZV.from_canonical(terms_)
     return Expansion(
         variables=tuple(integrand.variables),
         parameters=tuple(integrand.parameters),

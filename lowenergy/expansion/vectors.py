@@ -50,7 +50,7 @@ from ..zeta.element import MZV, _mono_mul
 from ..zeta.reduction import Monomial, _rational_reconstruct, monomials_of_weight
 from ..zeta.table import TableStore
 
-__all__ = ["ColumnSpace", "shuffle_values", "embedding_counts", "VSeries"]
+__all__ = ["ColumnSpace", "shuffle_values", "embedding_counts", "VSeries", "fraction", "poly_from"]
 
 Word = Tuple[int, ...]
 Mode = Tuple[int, int]  # (p0, p1): weights of the rows G(0u; 1) and -G(1u; 1)
@@ -113,8 +113,17 @@ class ColumnSpace:
         terms = {}
         for k, c in enumerate(vec.coeffs()):
             if c:
-                terms[self.monos[k]] = Fraction(int(c.p), int(c.q))
+                terms[self.monos[k]] = fraction(c)
         return MZV.from_canonical(terms)
+
+
+def fraction(q) -> Fraction:
+    """A python-flint ``fmpq`` as a ``Fraction`` (already in lowest terms, so
+    the normalizing gcd of ``Fraction(n, d)`` is skipped)."""
+    out = object.__new__(Fraction)
+    out._numerator = int(q.p)
+    out._denominator = int(q.q)
+    return out
 
 
 def poly_from(coeffs: Dict[int, Fraction]):
@@ -195,19 +204,33 @@ def _popcount_order(length: int):
 
 
 class _Reconstruction:
-    """Residues of one integer-combination vector modulo growing sets of primes."""
+    """Residues of one integer-combination vector modulo growing sets of primes.
 
-    __slots__ = ("crt", "modulus", "count", "previous", "done")
+    The rule of :class:`~lowenergy.expansion.values.ModularWordValues`: accept
+    the rational reconstruction from k primes once the reconstruction from
+    k + 1 primes is the same.  By uniqueness of rational reconstruction (a
+    fraction with |n|, d ≤ sqrt(M/2) congruent to the residue is the only
+    one), that holds exactly when the k-prime fractions are congruent to the
+    residues modulo prime k + 1 — a cheap test instead of a second
+    reconstruction.
+    """
+
+    __slots__ = ("crt", "modulus", "count", "candidate", "done")
 
     def __init__(self) -> None:
         self.crt: Optional[List[int]] = None
         self.modulus = 1
         self.count = 0
-        self.previous: Optional[List[Fraction]] = None
+        self.candidate: Optional[List[Fraction]] = None
         self.done: Optional[List[Fraction]] = None
 
     def add(self, p: int, residues: np.ndarray) -> None:
-        vec = [int(v) for v in residues]
+        vec = residues.tolist()
+        if self.candidate is not None:
+            if all((q.numerator - v * q.denominator) % p == 0 for q, v in zip(self.candidate, vec)):
+                self.done = self.candidate
+                return
+            self.candidate = None
         if self.crt is None:
             self.crt = vec
         else:
@@ -221,16 +244,16 @@ class _Reconstruction:
         coords: List[Fraction] = []
         for r in self.crt:
             if r == 0:
-                coords.append(Fraction(0))
+                coords.append(_ZERO)
                 continue
             q = _rational_reconstruct(r, self.modulus)
             if q is None:
-                self.previous = None
                 return
             coords.append(q)
-        if coords == self.previous:
-            self.done = coords
-        self.previous = coords
+        self.candidate = coords
+
+
+_ZERO = Fraction(0)
 
 
 def shuffle_values(
