@@ -404,7 +404,7 @@ def expand_bulk(
     pkeys = list(pindex)
     monos = space.monos
     result: Dict[Tuple[int, int], Dict[Tuple[int, ...], MZV]] = {}
-    for ij, pi in sorted(acc, key=lambda item: (item[0], pkeys[item[1]])):
+    for ij, pi in sorted(acc):
         terms_ = {monos[col]: fraction(y) for col, y in acc[(ij, pi)].items() if y}
         if terms_:
             result.setdefault(ij, {})[pkeys[pi]] = MZV.from_canonical(terms_)

@@ -42,6 +42,7 @@ from __future__ import annotations
 
 from collections import defaultdict
 from fractions import Fraction
+from math import isqrt
 from typing import Dict, Iterable, List, Optional, Tuple
 
 import numpy as np
@@ -242,14 +243,27 @@ class _Reconstruction:
         if self.count < 2:
             return
         coords: List[Fraction] = []
+        modulus = self.modulus
+        bound = isqrt(modulus // 2)
+        den = 0
         for r in self.crt:
             if r == 0:
                 coords.append(_ZERO)
                 continue
-            q = _rational_reconstruct(r, self.modulus)
+            if den:
+                # the denominator of the previous coordinate often fits: then n/den
+                # (|n|, den ≤ sqrt(M/2)) is the unique reconstruction
+                n = (r * den) % modulus
+                if n > modulus // 2:
+                    n -= modulus
+                if -bound <= n <= bound:
+                    coords.append(Fraction(n, den))
+                    continue
+            q = _rational_reconstruct(r, modulus)
             if q is None:
                 return
             coords.append(q)
+            den = q.denominator
         self.candidate = coords
 
 
