@@ -37,6 +37,8 @@ __all__ = ["expand_bulk", "series_vectors", "SeriesPlan"]
 Word = Tuple[int, ...]
 SeriesKey = Tuple[LinearExponent, LinearExponent, Word]
 
+_PARAM_BLOCK = 128  # rows of the coefficient matrix multiplied at once
+
 _SPACES: Dict[int, Tuple[TableStore, ColumnSpace]] = {}
 
 
@@ -375,11 +377,6 @@ def expand_bulk(
             continue
         col_pos = {f: n for n, f in enumerate(cols)}
         row_pos = {row: n for n, row in enumerate(used_rows)}
-        rmat = flint.fmpq_mat(len(pis), len(used_rows))
-        for n, pi in enumerate(pis):
-            for row, r in by_param[pi].items():
-                if r:
-                    rmat[n, row_pos[row]] = flint.fmpq(r.numerator, r.denominator)
         zmat = flint.fmpq_mat(len(used_rows), len(cols))
         for row in used_rows:
             ri = row_pos[row]
@@ -387,20 +384,28 @@ def expand_bulk(
                 n = col_pos.get(f)
                 if n is not None:
                     zmat[ri, n] = c
-        prod = (rmat * zmat).entries()
         targets = [((flat_keys[f][0][0] + k, flat_keys[f][0][1] + l), flat_keys[f][1]) for f in cols]
         width = len(cols)
-        for n_p, pi in enumerate(pis):
-            base = n_p * width
-            for n, y in enumerate(prod[base : base + width]):
-                if y:
-                    ij, col = targets[n]
-                    target = acc.get((ij, pi))
-                    if target is None:
-                        acc[(ij, pi)] = {col: y}
-                    else:
-                        got = target.get(col)
-                        target[col] = y if got is None else got + y
+        # a few parameter monomials at a time: the product's entries are Python objects
+        for start in range(0, len(pis), _PARAM_BLOCK):
+            block = pis[start : start + _PARAM_BLOCK]
+            rmat = flint.fmpq_mat(len(block), len(used_rows))
+            for n, pi in enumerate(block):
+                for row, r in by_param[pi].items():
+                    if r:
+                        rmat[n, row_pos[row]] = flint.fmpq(r.numerator, r.denominator)
+            prod = (rmat * zmat).entries()
+            for n_p, pi in enumerate(block):
+                base = n_p * width
+                for n, y in enumerate(prod[base : base + width]):
+                    if y:
+                        ij, col = targets[n]
+                        target = acc.get((ij, pi))
+                        if target is None:
+                            acc[(ij, pi)] = {col: y}
+                        else:
+                            got = target.get(col)
+                            target[col] = y if got is None else got + y
     pkeys = list(pindex)
     monos = space.monos
     result: Dict[Tuple[int, int], Dict[Tuple[int, ...], MZV]] = {}

@@ -152,41 +152,48 @@ def embedding_counts(words: Iterable[Word], length: int) -> Dict[Word, np.ndarra
     >>> [int(e[k]) for k in (0b001, 0b011, 0b101, 0b010)]   # 001, 011, 101, 010
     [2, 2, 1, 1]
     """
-    words = sorted(set(tuple(w) for w in words))
+    words = [tuple(w) for w in words]
+    out = {w: e.astype(np.int64) for w, e in _walk_embeddings(words, length)}
+    for w in words:
+        out.setdefault(w, np.zeros(1 << length, dtype=np.int64))
+    return out
+
+
+def _walk_embeddings(words: Iterable[Word], length: int):
+    """Yield ``(w, counts)`` for the words of at most ``length`` letters (counts is
+    a view into a work array: use it before the next step).  int32 counts: a
+    count is at most C(length, len(w)) < 2^31 for length ≤ 33."""
+    words = sorted(set(tuple(w) for w in words if len(w) <= length))
     n = 1 << length
     idx = np.arange(n, dtype=np.int64)
-    # letter[i] is the (i+1)-th letter of every u, i = 0 .. length-1
-    letters = np.empty((length, n), dtype=np.bool_)
+    # masks[a][i] = 1 where the (i+1)-th letter of u is a, i = 0 .. length-1
+    ones = np.empty((length, n), dtype=np.int32)
     for i in range(length):
-        letters[i] = ((idx >> (length - 1 - i)) & 1).astype(np.bool_)
-    out: Dict[Word, np.ndarray] = {}
+        ones[i] = (idx >> (length - 1 - i)) & 1
+    masks = (1 - ones, ones)
     wanted = set(words)
-    # H[i] = embeddings of the current prefix into u[:i], i = 0 .. length
-    root = np.ones((length + 1, n), dtype=np.int64)
-    children: Dict[Word, List[int]] = defaultdict(list)
+    children: Dict[Word, set] = defaultdict(set)
     for w in words:
         for r in range(1, len(w) + 1):
-            if w[r - 1] not in children[w[: r - 1]]:
-                children[w[: r - 1]].append(w[r - 1])
+            children[w[: r - 1]].add(w[r - 1])
+    # work[depth][i] = embeddings of the current prefix (of that length) into u[:i]
+    work = [np.ones((length + 1, n), dtype=np.int32)]
 
-    def walk(prefix: Word, table: np.ndarray) -> None:
+    def walk(prefix: Word, depth: int):
+        table = work[depth]
         if prefix in wanted:
-            out[prefix] = table[length].copy()
+            yield prefix, table[length]
         for a in sorted(children.get(prefix, ())):
-            if len(prefix) + 1 > length:
-                continue
-            step = np.zeros_like(table)
-            mask = letters if a == 1 else ~letters
-            # new[i] = Σ_{i' ≤ i, u_{i'} = a} old[i' - 1]
-            np.multiply(table[:-1], mask, out=step[1:])
-            np.cumsum(step, axis=0, out=step)
-            walk(prefix + (a,), step)
+            if len(work) <= depth + 1:
+                work.append(np.empty((length + 1, n), dtype=np.int32))
+            nxt = work[depth + 1]
+            nxt[0] = 0
+            # nxt[i] = Σ_{i' ≤ i, u_{i'} = a} table[i' - 1]
+            np.multiply(table[:-1], masks[a], out=nxt[1:])
+            np.cumsum(nxt, axis=0, out=nxt)
+            yield from walk(prefix + (a,), depth + 1)
 
-    walk((), root)
-    for w in words:
-        if w not in out:  # longer than the words of this length
-            out[w] = np.zeros(n, dtype=np.int64)
-    return out
+    yield from walk((), 0)
 
 
 # ---------------------------------------------------------------------------
@@ -292,61 +299,53 @@ def shuffle_values(
     if not by_length:
         return {}
     states: Dict[Tuple[Word, int, int, Mode], _Reconstruction] = {}
-    plans = []
+    # one (length, mode) block at a time: its count matrix is the big array
     for length in sorted(by_length):
         order, bounds = _popcount_order(length)
         table = word_values(length + 1, store, exact=False)
-        cols = space.basis_cols(length + 1)
+        n_u = 1 << length
         for mode, words in sorted(by_length[length].items()):
             words = sorted(words)
-            counts = embedding_counts(words, length)
-            emb = np.stack([counts[w] for w in words])[:, order].astype(np.float64)
+            row_of = {w: k for k, w in enumerate(words)}
+            emb = np.empty((len(words), n_u), dtype=np.float64)
+            for w, counts in _walk_embeddings(words, length):
+                emb[row_of[w]] = counts[order]
             biggest = float(emb.max()) if emb.size else 0.0
+            block = {}
             for w in words:
                 total = length - len(w)
                 for n in range(total + 1):
-                    states[(w, total, n, mode)] = _Reconstruction()
-            plans.append((length, mode, words, emb, biggest, order, bounds, table, cols))
-    for p in SMALL_PRIMES:
-        pending = [plan for plan in plans if any(
-            states[(w, plan[0] - len(w), n, plan[1])].done is None
-            for w in plan[2] for n in range(plan[0] - len(w) + 1))]
-        if not pending:
-            break
-        half = p // 2
-        for length, mode, words, emb, biggest, order, bounds, table, cols in pending:
-            rows = np.asarray(table._rows(p), dtype=np.int64)
-            n_u = 1 << length
-            p0, p1 = mode
-            diff = np.zeros((n_u, rows.shape[1]), dtype=np.int64)
-            if p0:
-                diff += rows[:n_u]
-            if p1:
-                diff -= rows[n_u:]
-            diff %= p
-            diff[diff > half] -= p
-            diff = diff[order].astype(np.float64)
-            # every partial sum stays below 2^53: |count| ≤ biggest, |entry| ≤ p/2
-            chunk = max(1, int(2.0 ** 52 // max(1.0, biggest * (half + 1))))
+                    block[(w, n)] = states[(w, total, n, mode)] = _Reconstruction()
             ones_w = [sum(w) for w in words]
-            for c in range(length + 1):
-                lo, hi = int(bounds[c]), int(bounds[c + 1])
-                if lo == hi:
-                    continue
-                rows_needed = [k for k, w in enumerate(words) if 0 <= c - ones_w[k] <= length - len(w)]
-                if not rows_needed:
-                    continue
-                sub = emb[rows_needed]
-                acc = np.zeros((len(rows_needed), diff.shape[1]), dtype=np.int64)
-                for start in range(lo, hi, chunk):
-                    stop = min(hi, start + chunk)
-                    part = sub[:, start:stop] @ diff[start:stop]
-                    acc = (acc + np.rint(part).astype(np.int64) % p) % p
-                for r, k in enumerate(rows_needed):
-                    w = words[k]
-                    st = states[(w, length - len(w), c - ones_w[k], mode)]
-                    if st.done is None:
-                        st.add(p, acc[r])
+            for p in SMALL_PRIMES:
+                if all(st.done is not None for st in block.values()):
+                    break
+                half = p // 2
+                rows = table._rows(p)
+                diff = np.zeros((n_u, rows.shape[1]), dtype=np.int64)
+                if mode[0]:
+                    diff += rows[:n_u]
+                if mode[1]:
+                    diff -= rows[n_u:]
+                diff %= p
+                diff[diff > half] -= p
+                diff = diff[order].astype(np.float64)
+                # every partial sum stays below 2^53: |count| ≤ biggest, |entry| ≤ p/2
+                chunk = max(1, int(2.0 ** 52 // max(1.0, biggest * (half + 1))))
+                for c in range(length + 1):
+                    lo, hi = int(bounds[c]), int(bounds[c + 1])
+                    needed = [k for k, w in enumerate(words)
+                              if 0 <= c - ones_w[k] <= length - len(w) and block[(w, c - ones_w[k])].done is None]
+                    if lo == hi or not needed:
+                        continue
+                    acc = np.zeros((len(words), diff.shape[1]), dtype=np.int64)
+                    for start in range(lo, hi, chunk):
+                        stop = min(hi, start + chunk)
+                        part = emb[:, start:stop] @ diff[start:stop]
+                        acc = (acc + np.rint(part).astype(np.int64) % p) % p
+                    for k in needed:
+                        block[(words[k], c - ones_w[k])].add(p, acc[k])
+            del emb
     out = {}
     for (w, total, n, mode), st in states.items():
         if st.done is None:
