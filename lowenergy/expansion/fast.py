@@ -180,6 +180,7 @@ class SeriesPlan:
         self.requests: Dict[Tuple[Word, Tuple[int, int]], int] = {}
         self.values: Dict = {}
         self.done: Dict[SeriesKey, VSeries] = {}
+        self._ibp_memo: Dict[tuple, Dict[Tuple[Word, int, int], VSeries]] = {}
 
     def _request(self, word: Word, order: int, mode: Tuple[int, int]) -> None:
         if order >= 0:
@@ -262,7 +263,9 @@ class SeriesPlan:
         alpha = (x_exp.coeff if x_exp.var == 0 else Fraction(0), x_exp.coeff if x_exp.var == 1 else Fraction(0))
         beta = (y_exp.coeff if y_exp.var == 0 else Fraction(0), y_exp.coeff if y_exp.var == 1 else Fraction(0))
         lam = (alpha[0] + beta[0], alpha[1] + beta[1])
-        memo: Dict[Tuple[Word, int, int], VSeries] = {}
+        # shared by all terms with these exponents (their words share suffixes)
+        memo: Dict[Tuple[Word, int, int], VSeries] = self._ibp_memo.setdefault(
+            (x_exp.coeff, x_exp.var, y_exp.coeff, y_exp.var, order), {})
 
         def J(w: Word, a: int, b: int) -> VSeries:
             got = memo.get((w, a, b))
