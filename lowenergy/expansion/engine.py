@@ -331,6 +331,11 @@ def expand(
     """
     if not isinstance(order, int) or order < 0:
         raise InputError(f"the order must be a non-negative integer, got {order!r}")
+    if getattr(integrand, "domain", "interval") != "interval":
+        raise InputError(
+            f"{integrand.source} is a {integrand.domain} integrand; this engine expands interval integrands",
+            hint="use lowenergy.svpolylog.sphere.expand_sphere (the command line chooses it by itself)",
+        )
     if method == "termwise":
         return expand_termwise(integrand, order, progress, store=store)
     if method != "bulk":
