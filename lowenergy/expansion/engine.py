@@ -43,10 +43,13 @@ from typing import Callable, Dict, List, Optional, Tuple
 from ..errors import InputError
 from ..integrand.model import Integrand, LinearExponent, Term
 from ..zeta.element import MZV, g_value
+from ..zeta.table import TableStore, default_store
 from .result import Expansion
 from .values import word_index, word_values
 
-__all__ = ["expand", "raw_series", "endpoint_coefficients_at_one", "moment", "required_weight", "check_order"]
+__all__ = [
+    "expand", "expand_termwise", "raw_series", "endpoint_coefficients_at_one", "moment", "required_weight", "check_order",
+]
 
 Series = Dict[Tuple[int, int], MZV]
 
@@ -83,12 +86,12 @@ def words_with_counts(zeros: int, ones: int):
 # ---------------------------------------------------------------------------
 
 @lru_cache(maxsize=None)
-def _g(word: Tuple[int, ...]) -> MZV:
-    return g_value(word)
+def _g(word: Tuple[int, ...], store: Optional[TableStore] = None) -> MZV:
+    return g_value(word, store=store)
 
 
 @lru_cache(maxsize=None)
-def moment(j: int, u: Tuple[int, ...]) -> MZV:
+def moment(j: int, u: Tuple[int, ...], store: Optional[TableStore] = None) -> MZV:
     """``J(j, u) = ∫_0^1 x^j G(u; x) dx`` (j ≥ 0), exactly.
 
     Integration by parts against ``(x^(j+1) - 1)/(j+1)``, which vanishes at
@@ -102,13 +105,13 @@ def moment(j: int, u: Tuple[int, ...]) -> MZV:
     if u[0] == 1:
         total = MZV()
         for i in range(j + 1):
-            total = total + moment(i, rest)
+            total = total + moment(i, rest, store)
         return total * Fraction(-1, j + 1)
-    return (_g(u) - moment(j, rest)) * Fraction(1, j + 1)
+    return (_g(u, store) - moment(j, rest, store)) * Fraction(1, j + 1)
 
 
 @lru_cache(maxsize=None)
-def endpoint_coefficients_at_one(w: Tuple[int, ...]) -> Tuple[MZV, ...]:
+def endpoint_coefficients_at_one(w: Tuple[int, ...], store: Optional[TableStore] = None) -> Tuple[MZV, ...]:
     """``(d_0, d_1, ...)`` with ``G(w; x) = Σ_k d_k G(1^k; x) + o(1)`` as x → 1.
 
     Words not starting with 1 tend to their (regularized) value at 1.  For
@@ -116,7 +119,7 @@ def endpoint_coefficients_at_one(w: Tuple[int, ...]) -> Tuple[MZV, ...]:
     and ``d_k(G(1)·G(y)) = k·d_(k-1)(y)`` give a recursion.
     """
     if not w or w[0] == 0:
-        return (_g(w),)
+        return (_g(w, store),)
     m = 0
     while m < len(w) and w[m] == 1:
         m += 1
@@ -124,14 +127,14 @@ def endpoint_coefficients_at_one(w: Tuple[int, ...]) -> Tuple[MZV, ...]:
     if not u:
         return tuple([MZV()] * m + [MZV.one()])
     head = (1,) * (m - 1)
-    base = endpoint_coefficients_at_one(head + u)
+    base = endpoint_coefficients_at_one(head + u, store)
     acc: Dict[int, MZV] = {}
     for k, dk in enumerate(base):
         if dk:
             acc[k + 1] = acc.get(k + 1, MZV()) + dk * (k + 1)
     for i in range(1, len(u) + 1):
         other = head + u[:i] + (1,) + u[i:]
-        for k, dk in enumerate(endpoint_coefficients_at_one(other)):
+        for k, dk in enumerate(endpoint_coefficients_at_one(other, store)):
             if dk:
                 acc[k] = acc.get(k, MZV()) - dk
     top = max(acc) if acc else 0
@@ -195,11 +198,16 @@ def raw_series(
     word: Tuple[int, ...],
     order: int,
     progress: Optional[Callable[[str], None]] = None,
+    store: Optional[TableStore] = None,
 ) -> Series:
     """Laurent series of ``∫_0^1 x^(x_exp) (1-x)^(y_exp) G(word; x) dx`` in (s, t).
 
     Returns ``{(i, j): MZV}`` for all ``i + j ≤ order`` (poles included).
+    One word at a time with MZV arithmetic (the reference path; the bulk
+    path of :mod:`lowenergy.expansion.fast` gives the same numbers).
+    ``store``: the MZV tables (default :func:`~lowenergy.zeta.table.default_store`).
     """
+    store = store or default_store()
     a, c, vx = _split(x_exp, "x")
     b, d, vy = _split(y_exp, "(1-x)")
     word = tuple(word)
@@ -237,7 +245,7 @@ def raw_series(
             i, j = mono(vx, -(k + 1))
             add(i, j, MZV.rational(Fraction((-1) ** k) / c ** (k + 1)))
     if p1:
-        ds = endpoint_coefficients_at_one(word)
+        ds = endpoint_coefficients_at_one(word, store)
         for k, dk in enumerate(ds):
             if not dk:
                 continue
@@ -263,7 +271,7 @@ def raw_series(
                 continue
             scale = (c ** m if m else Fraction(1)) * (d ** n if n else Fraction(1))
             length = m + n + len(word)
-            table = word_values(length + 1) if (p0 or p1) else None
+            table = word_values(length + 1, store) if (p0 or p1) else None
             top = 1 << length  # row of (1,) + u is top + row of u
             rows: Dict[int, int] = {}
             total = MZV()
@@ -279,7 +287,7 @@ def raw_series(
                         rows[top + r] = rows.get(top + r, 0) - mult
                 for jj, qj in enumerate(q):
                     if qj:
-                        total = total + moment(jj, u) * (qj * mult)
+                        total = total + moment(jj, u, store) * (qj * mult)
             if table is not None:
                 total = total + table.combine(rows)
             add(i, j, total * scale)
@@ -345,8 +353,57 @@ def expand(
     integrand: Integrand,
     order: int,
     progress: Optional[Callable[[str], None]] = None,
+    *,
+    store: Optional[TableStore] = None,
+    method: str = "bulk",
 ) -> Expansion:
     """Exact low-energy expansion of an integrand to total order ``order``.
+
+    Parameters
+    ----------
+    integrand:
+        The integrand (see :mod:`lowenergy.integrand.model`).
+    order:
+        Keep every Laurent monomial ``s^i t^j`` with ``i + j ≤ order``.
+    progress:
+        Optional callback receiving status strings (one call per term).
+    store:
+        The MZV tables (default :func:`~lowenergy.zeta.table.default_store`).
+    method:
+        ``"bulk"`` (default): each distinct word series is computed once as
+        exact vectors over the MZV basis and the coefficients are applied as
+        one linear map (:mod:`lowenergy.expansion.fast`); ``"termwise"``:
+        the reference path, one term at a time with MZV arithmetic.  Both
+        give identical results.
+
+    Returns
+    -------
+    Expansion
+    """
+    if not isinstance(order, int) or order < 0:
+        raise InputError(f"the order must be a non-negative integer, got {order!r}")
+    if getattr(integrand, "domain", "interval") != "interval":
+        raise InputError(
+            f"{integrand.source} is a {integrand.domain} integrand; this engine expands interval integrands",
+            hint="use lowenergy.svpolylog.sphere.expand_sphere (the command line chooses it by itself)",
+        )
+    if method == "termwise":
+        return expand_termwise(integrand, order, progress, store=store)
+    if method != "bulk":
+        raise InputError(f"unknown expansion method {method!r}", hint="use bulk or termwise")
+    from .fast import expand_bulk
+
+    return expand_bulk(integrand, order, progress, store=store or default_store())
+
+
+def expand_termwise(
+    integrand: Integrand,
+    order: int,
+    progress: Optional[Callable[[str], None]] = None,
+    *,
+    store: Optional[TableStore] = None,
+) -> Expansion:
+    """Exact low-energy expansion, one term at a time with MZV arithmetic (reference path).
 
     Parameters
     ----------
@@ -387,7 +444,7 @@ def expand(
         if raw_order < -(len(term.word) + 1):
             continue  # even the highest pole times the lowest monomial is beyond the order
         try:
-            series = raw_series(term.x_exp, term.y_exp, term.word, raw_order)
+            series = raw_series(term.x_exp, term.y_exp, term.word, raw_order, store=store)
         except InputError as err:
             raise err.located(source=integrand.source, line=term.source_line, term=term.text)
         for (i, j), value in series.items():

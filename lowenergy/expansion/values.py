@@ -201,17 +201,48 @@ class ModularWordValues:
             if rows is not None and rows.shape != (1 << self.weight, len(self.basis)):
                 rows = None
         if rows is None:
-            rows = self._factory(p, self.store).word_values(self.weight)
-            try:
-                folder.mkdir(parents=True, exist_ok=True)
-                fd, tmp = tempfile.mkstemp(dir=folder, suffix=".npy")
-                with os.fdopen(fd, "wb") as fh:
-                    np.save(fh, rows.astype(np.int32), allow_pickle=False)
-                os.replace(tmp, path)
-            except OSError:
-                pass  # a read-only cache only costs time
+            rows = self._build_rows(p, folder, path)
         self._data[p] = rows
         return rows
+
+    def _build_rows(self, p: int, folder, path):
+        """Build the rows modulo p one class of words (fixed number of ones) at a
+        time (:meth:`~lowenergy.zeta.motivic._PrimeData.word_values_of_class`),
+        written straight into the memory-mapped cache file: never 2^W × d
+        integers in memory at once.  Without a writable cache directory the
+        classes are collected in memory instead.
+        """
+        import os
+        import tempfile
+
+        import numpy as np
+        from numpy.lib.format import open_memmap
+
+        data = self._factory(p, self.store)
+        shape = (1 << self.weight, len(self.basis))
+        try:
+            folder.mkdir(parents=True, exist_ok=True)
+            fd, tmp = tempfile.mkstemp(dir=folder, suffix=".npy")
+            os.close(fd)
+        except OSError:
+            rows = np.zeros(shape, dtype=np.int32)  # a read-only cache only costs time
+            for ones in range(self.weight + 1):
+                idx, vals = data.word_values_of_class(self.weight, ones)
+                rows[idx] = vals
+            return rows
+        try:
+            out = open_memmap(tmp, mode="w+", dtype=np.int32, shape=shape)
+            for ones in range(self.weight + 1):
+                idx, vals = data.word_values_of_class(self.weight, ones)
+                out[idx] = vals
+            out.flush()
+            del out
+            os.replace(tmp, path)
+        except BaseException:
+            if os.path.exists(tmp):
+                os.unlink(tmp)
+            raise
+        return np.load(path, mmap_mode="r", allow_pickle=False)
 
     def combine(self, coeffs: Dict[int, int]) -> MZV:
         import numpy as np

@@ -93,6 +93,15 @@ class MZV:
         return cls({(): Fraction(q)})
 
     @classmethod
+    def from_canonical(cls, terms: Dict[Monomial, Fraction]) -> "MZV":
+        """Wrap ``{monomial: Fraction}`` that is already canonical (sorted
+        monomials, non-zero Fraction coefficients) without re-normalizing it."""
+        out = cls.__new__(cls)
+        out._terms = terms
+        out._hash = None
+        return out
+
+    @classmethod
     def zero(cls) -> "MZV":
         return cls()
 

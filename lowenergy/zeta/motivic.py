@@ -157,6 +157,85 @@ class _PrimeData:
         self.values[k] = out
         return out
 
+    def word_values_of_class(self, k: int, ones: int) -> Tuple[np.ndarray, np.ndarray]:
+        """``(indices, values)``: the words of weight k with ``ones`` letters 1 and
+        their values mod p — the rows of :meth:`word_values` for one class.
+
+        The regularization recursion never leaves a class (inserting a letter
+        into a shuffle keeps the numbers of zeros and ones), so the 2^k rows can
+        be built one class at a time: at most C(k, k/2) rows in memory instead
+        of 2^k (a factor ≈ sqrt(πk/2) less).  Nothing is cached.
+        """
+        p = self.p
+        basis = self.basis_of(k)
+        col = {m: i for i, m in enumerate(basis)}
+        d = len(basis)
+        n = 1 << k
+        if k == 0:
+            return np.zeros(1, dtype=np.int64), np.ones((1, 1), dtype=np.int64)
+        members = np.arange(n, dtype=np.int64)
+        pc = np.zeros(n, dtype=np.int64)
+        for b in range(k):
+            pc += (members >> b) & 1
+        members = members[pc == ones]
+        del pc
+        rank = {int(w): r for r, w in enumerate(members.tolist())} if len(members) < 4096 else None
+        if rank is None:
+            lookup = np.full(n, -1, dtype=np.int32)
+            lookup[members] = np.arange(len(members), dtype=np.int32)
+        out = np.zeros((len(members), d), dtype=np.int64)
+
+        def at(words: np.ndarray) -> np.ndarray:
+            if rank is not None:
+                return np.array([rank[int(w)] for w in words], dtype=np.int64)
+            return lookup[words]
+
+        tz = np.zeros(len(members), dtype=np.int64)
+        lo = np.zeros(len(members), dtype=np.int64)
+        for b in range(k):
+            still = (tz == b) & (((members >> b) & 1) == 0)
+            tz[still] = b + 1
+        for b in range(k):
+            still = (lo == b) & (((members >> (k - 1 - b)) & 1) == 1)
+            lo[still] = b + 1
+        for r in np.nonzero((tz == 0) & (lo == 0))[0].tolist():
+            i = int(members[r])
+            w = tuple((i >> (k - 1 - j)) & 1 for j in range(k))
+            ind = word_to_indices(w)
+            sign = -1 if len(ind) % 2 else 1
+            for mono, num, den in self.store.reduction_raw(ind):
+                out[r, col[mono]] = (sign * (num % p) * pow(den % p, -1, p)) % p
+        # the same two passes as word_values, restricted to the class
+        for m in range(1, k):
+            sel = np.nonzero((tz == 0) & (lo == m))[0]
+            if len(sel) == 0:
+                continue
+            length_u = k - m
+            u = members[sel] & ((1 << length_u) - 1)
+            acc = np.zeros((len(sel), d), dtype=np.int64)
+            for j in range(1, length_u + 1):
+                top_u = u >> (length_u - j)
+                low_u = u & ((1 << (length_u - j)) - 1)
+                new_u = (((top_u << 1) | 1) << (length_u - j)) | low_u
+                new = (((1 << (m - 1)) - 1) << (length_u + 1)) | new_u
+                acc = (acc + out[at(new)]) % p
+            out[sel] = (-acc * pow(m, -1, p)) % p
+        for m in range(1, k):
+            sel = np.nonzero(tz == m)[0]
+            if len(sel) == 0:
+                continue
+            length_u = k - m
+            u = members[sel] >> m
+            acc = np.zeros((len(sel), d), dtype=np.int64)
+            for j in range(length_u):
+                top_u = u >> (length_u - j)
+                low_u = u & ((1 << (length_u - j)) - 1)
+                new_u = (top_u << (length_u - j + 1)) | low_u
+                new = new_u << (m - 1)
+                acc = (acc + out[at(new)]) % p
+            out[sel] = (-acc * pow(m, -1, p)) % p
+        return members, out
+
     def f_images(self, k: int, fbasis: Dict[int, Dict[FKey, int]]) -> np.ndarray:
         """(2^k × dim U_k) f-alphabet images of all words of weight k, mod p."""
         if k in self.fimages:

@@ -45,3 +45,39 @@ def test_motivic_weight_15_dimension(tmp_path):
     # Zagier (1994): d_13 = 16, d_14 = 21, d_15 = 28.  Motivic route above weight 12.
     store = build_tables(15, TableStore(tmp_path))
     assert [store.dimension(w) for w in (13, 14, 15)] == [16, 21, 28]
+
+
+def test_word_values_by_class_equal_all_rows_at_once():
+    # The class-by-class rows (fixed number of ones) are the rows of the
+    # all-at-once computation, and every word is in exactly one class.
+    import numpy as np
+
+    from lowenergy.zeta.motivic import _PrimeData
+
+    p = SMALL_PRIMES[0]
+    data = _PrimeData(p, default_store())
+    for k in (1, 5, 10):
+        full = data.word_values(k)
+        seen = np.zeros(1 << k, dtype=np.int64)
+        for ones in range(k + 1):
+            idx, vals = data.word_values_of_class(k, ones)
+            assert np.array_equal(vals, full[idx])
+            seen[idx] += 1
+        assert (seen == 1).all()
+        assert full.any() or k == 1  # G(0;1) = G(1;1) = 0
+
+
+def test_streamed_row_cache_equals_in_memory_rows(tmp_path):
+    # ModularWordValues writes its disk cache class by class into a memory map;
+    # the file must hold exactly the rows of the in-memory computation.
+    import numpy as np
+
+    from lowenergy.expansion.values import ModularWordValues
+    from lowenergy.zeta.motivic import _PrimeData
+
+    store = TableStore(tmp_path)
+    build_tables(11, store)
+    p = SMALL_PRIMES[1]
+    rows = ModularWordValues(11, store)._rows(p)
+    assert (tmp_path / "rows" / f"weight-11-p{p}.npy").exists()
+    assert np.array_equal(np.asarray(rows), _PrimeData(p, store).word_values(11).astype(np.int32))
