@@ -131,6 +131,8 @@ def expand(
     if isinstance(order, bool) or not isinstance(order, int) or not 0 <= order <= 60:
         raise InputError(f"order must be an integer between 0 and 60, got {order!r}")
     integrand = _integrand(path_or_text, parameters)
+    if getattr(integrand, "domain", "interval") == "sphere":
+        from .svpolylog.sphere import expand_sphere as run_expand
     base = run_expand(integrand, order)
     return Expansion(
         variables=base.variables,
@@ -140,4 +142,6 @@ def expand(
         title=base.title,
         source=base.source,
         meta=base.meta,
+        u_poles=base.u_poles,
+        domain=base.domain,
     )
