@@ -15,7 +15,7 @@ import them from here (some re-export them under their old names).
 >>> check_weight(24)
 Traceback (most recent call last):
     ...
-lowenergy.errors.TableError: MZV weight 24 is beyond the package's limit of 18; hint: the package builds MZV tables up to weight 18 (`lowenergy tables build --weight 18`); reachable weights are 0 to 18
+lowenergy.errors.TableError: MZV weight 24 is beyond the package's limit of 18; hint: lowenergy builds MZV tables up to weight 18 only; reachable weights are 0 to 18
 """
 
 from __future__ import annotations
@@ -122,8 +122,8 @@ def check_weight(weight: int, what: str = "MZV") -> None:
     if weight > MAX_WEIGHT:
         raise TableError(
             f"{what} weight {weight} is beyond the package's limit of {MAX_WEIGHT}",
-            hint=f"the package builds MZV tables up to weight {MAX_WEIGHT} "
-            f"(`lowenergy tables build --weight {MAX_WEIGHT}`); reachable weights are 0 to {MAX_WEIGHT}",
+            hint=f"lowenergy builds MZV tables up to weight {MAX_WEIGHT} only; "
+            f"reachable weights are 0 to {MAX_WEIGHT}",
         )
 
 

@@ -101,7 +101,7 @@ from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from ..zeta.format import fraction_text
 from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, check, check_order, exact_sides
-from .linalg import Echelon, IncrementalBasis
+from .linalg import Echelon, IncrementalBasis, greedy_independent
 from .linalg import consistent as linalg_consistent
 from .model import Constraint, ConstraintSet, pole_levels_needed
 from .rewrite import rewrite_toml
@@ -672,9 +672,16 @@ def _rows_status(rows, affine: AffineMap, n: int) -> str:
 
 
 def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], nfree: int) -> Tuple[str, ...]:
-    """A greedy smallest set of pole-numerator coefficients that would fix the free parameters."""
-    basis = IncrementalBasis()
-    chosen: List[str] = []
+    """A greedy smallest set of pole-numerator coefficients that would fix the free parameters.
+
+    Candidates in a fixed order (level, order, power); a candidate is kept when
+    one of its rows over the free parameters is independent of the rows of
+    all candidates before it (one exact rref, :func:`.linalg.greedy_independent`),
+    until the kept rows reach the number of free parameters.
+    """
+    labels: List[str] = []
+    owner: List[int] = []
+    flat_rows: List[Dict[int, Fraction]] = []
     for (v, p) in sorted(poles.poles, key=lambda k: (abs(k[1]), k[0])):
         for k in sorted(poles.poles[(v, p)], reverse=True):
             for power in sorted(poles.poles[(v, p)][k]):
@@ -683,13 +690,22 @@ def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], n
                 rows = [part for _, part in (_apply(r, affine, n) for r in _pole_rows(cond, n, params)) if part]
                 if not rows:
                     continue
-                added = [basis.add(r) for r in rows]
-                if any(added):
-                    var, other = ("s", "t") if v == 0 else ("t", "s")
-                    mono = "1" if power == 0 else (other if power == 1 else f"{other}^{power}")
-                    chosen.append(f"numerator of 1/({var}-{fraction_text(p)})^{k}, coefficient of {mono}")
-                if basis.rank == nfree:
-                    return tuple(chosen)
+                var, other = ("s", "t") if v == 0 else ("t", "s")
+                mono = "1" if power == 0 else (other if power == 1 else f"{other}^{power}")
+                labels.append(f"numerator of 1/({var}-{fraction_text(p)})^{k}, coefficient of {mono}")
+                for r in rows:
+                    owner.append(len(labels) - 1)
+                    flat_rows.append(r)
+    chosen: List[str] = []
+    rank = 0
+    last = -1
+    for j in greedy_independent(flat_rows, n):
+        rank += 1
+        if owner[j] != last:
+            chosen.append(labels[owner[j]])
+            last = owner[j]
+        if rank == nfree:
+            break
     return tuple(chosen)
 
 

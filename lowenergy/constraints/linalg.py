@@ -28,7 +28,7 @@ from typing import Dict, Iterable, List, Sequence, Tuple
 
 import flint
 
-__all__ = ["Echelon", "IncrementalBasis", "consistent", "SparseRow"]
+__all__ = ["Echelon", "IncrementalBasis", "consistent", "greedy_independent", "SparseRow"]
 
 SparseRow = Dict[int, object]
 
@@ -103,6 +103,37 @@ def consistent(rows: Sequence[SparseRow], ncols: int) -> bool:
     e = Echelon(ncols)
     e.add(rows)
     return e.consistent
+
+
+def greedy_independent(rows: Sequence[SparseRow], ncols: int) -> List[int]:
+    """Indices of the rows that are linearly independent of all rows before them.
+
+    The same choice as adding the rows one by one to an
+    :class:`IncrementalBasis` and keeping those that raise the rank, computed
+    exactly with one ``fmpq_mat.rref`` of the matrix whose *columns* are the
+    rows: its pivot columns are exactly the greedy choice.
+
+    >>> greedy_independent([{0: 1, 1: 2}, {0: 2, 1: 4}, {1: 1}, {0: 3}], 2)
+    [0, 2]
+    """
+    rows = list(rows)
+    if not rows:
+        return []
+    n = len(rows)
+    zero = flint.fmpq(0)
+    flat = [zero] * (ncols * n)
+    for j, r in enumerate(rows):
+        for c, v in r.items():
+            if v:
+                flat[c * n + j] = _fmpq(v)
+    reduced, rank = flint.fmpq_mat(ncols, n, flat).rref()
+    pivots = []
+    for i in range(rank):
+        for j in range(pivots[-1] + 1 if pivots else 0, n):
+            if reduced[i, j] != zero:
+                pivots.append(j)
+                break
+    return pivots
 
 
 class IncrementalBasis:

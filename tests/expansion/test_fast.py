@@ -119,7 +119,7 @@ def test_embedding_counts_brute_force():
 @pytest.mark.parametrize("method", ["bulk", "termwise"])
 def test_expand_uses_the_given_store(tmp_path, method):
     integrand = Integrand(terms=terms_from_expression("x^(-s-1)*(1-x)^(-t-1)*G(0,1; x)"))
-    empty = TableStore(tmp_path / "no-tables")
+    empty = TableStore(tmp_path / "no-tables", auto_build=False)  # refuse, do not build
     with pytest.raises(TableError) as info:
         expand(integrand, 3, store=empty, method=method)
     assert "no-tables" in str(info.value)
