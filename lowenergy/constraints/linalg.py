@@ -105,20 +105,57 @@ def consistent(rows: Sequence[SparseRow], ncols: int) -> bool:
     return e.consistent
 
 
+#: The prime of :func:`greedy_independent` (a Mersenne prime below 2^64).
+GREEDY_PRIME = 2**61 - 1
+
+
 def greedy_independent(rows: Sequence[SparseRow], ncols: int) -> List[int]:
     """Indices of the rows that are linearly independent of all rows before them.
 
     The same choice as adding the rows one by one to an
-    :class:`IncrementalBasis` and keeping those that raise the rank, computed
-    exactly with one ``fmpq_mat.rref`` of the matrix whose *columns* are the
-    rows: its pivot columns are exactly the greedy choice.
+    :class:`IncrementalBasis` and keeping those that raise the rank: the pivot
+    columns of the matrix whose *columns* are the rows.  They are computed
+    with one ``nmod_mat.rref`` modulo the prime :data:`GREEDY_PRIME`.  Rows
+    found independent modulo the prime are independent over Q (a rational
+    dependency would reduce to one modulo the prime), so every chosen row is a
+    genuine new direction; a row could be passed over only if the prime
+    divides one of the matrix's minors (probability of order 1e-15 for
+    entries of this size).  Only the *advice* of ``fix`` (which pole
+    numerators would fix the free parameters) uses this; solutions and ranks
+    are computed exactly (:class:`Echelon`).  A denominator divisible by the
+    prime (never seen) switches to the exact rref.
 
     >>> greedy_independent([{0: 1, 1: 2}, {0: 2, 1: 4}, {1: 1}, {0: 3}], 2)
+    [0, 2]
+    >>> greedy_independent([{0: Fraction(1, 3), 1: 2}, {0: 1, 1: 6}, {1: Fraction(-5, 7)}], 2)
     [0, 2]
     """
     rows = list(rows)
     if not rows:
         return []
+    n = len(rows)
+    p = GREEDY_PRIME
+    mat = flint.nmod_mat(ncols, n, p)
+    for j, r in enumerate(rows):
+        for c, v in r.items():
+            if not v:
+                continue
+            q = _fmpq(v)
+            den = int(q.q) % p
+            if den == 0:
+                return _greedy_exact(rows, ncols)
+            mat[c, j] = int(q.p) * pow(den, -1, p) % p
+    reduced, rank = mat.rref()
+    pivots: List[int] = []
+    for i in range(rank):
+        for j in range(pivots[-1] + 1 if pivots else 0, n):
+            if int(reduced[i, j]) != 0:
+                pivots.append(j)
+                break
+    return pivots
+
+
+def _greedy_exact(rows: Sequence[SparseRow], ncols: int) -> List[int]:
     n = len(rows)
     zero = flint.fmpq(0)
     flat = [zero] * (ncols * n)
@@ -127,7 +164,7 @@ def greedy_independent(rows: Sequence[SparseRow], ncols: int) -> List[int]:
             if v:
                 flat[c * n + j] = _fmpq(v)
     reduced, rank = flint.fmpq_mat(ncols, n, flat).rref()
-    pivots = []
+    pivots: List[int] = []
     for i in range(rank):
         for j in range(pivots[-1] + 1 if pivots else 0, n):
             if reduced[i, j] != zero:
