@@ -101,7 +101,7 @@ from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from ..zeta.format import fraction_text
 from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, check, check_order, exact_sides
-from .linalg import Echelon, IncrementalBasis, greedy_independent
+from .linalg import Echelon, IncrementalBasis, greedy_independent_image
 from .linalg import consistent as linalg_consistent
 from .model import Constraint, ConstraintSet, pole_levels_needed
 from .rewrite import rewrite_toml
@@ -676,18 +676,19 @@ def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], n
 
     Candidates in a fixed order (level, order, power); a candidate is kept when
     one of its rows over the free parameters is independent of the rows of
-    all candidates before it (one exact rref, :func:`.linalg.greedy_independent`),
+    all candidates before it (one product and one rref modulo a 61-bit prime,
+    :func:`.linalg.greedy_independent_image`; advice only, see there),
     until the kept rows reach the number of free parameters.
     """
     labels: List[str] = []
     owner: List[int] = []
-    flat_rows: List[Dict[int, Fraction]] = []
+    raw_rows: List[Dict[int, Fraction]] = []
     for (v, p) in sorted(poles.poles, key=lambda k: (abs(k[1]), k[0])):
         for k in sorted(poles.poles[(v, p)], reverse=True):
             for power in sorted(poles.poles[(v, p)][k]):
                 pp = poles.poles[(v, p)][k][power]
                 cond = Condition("", "", "pole", None, None, [("", pp)])
-                rows = [part for _, part in (_apply(r, affine, n) for r in _pole_rows(cond, n, params)) if part]
+                rows = [r for r in _pole_rows(cond, n, params) if any(c != n for c in r)]
                 if not rows:
                     continue
                 var, other = ("s", "t") if v == 0 else ("t", "s")
@@ -695,11 +696,13 @@ def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], n
                 labels.append(f"numerator of 1/({var}-{fraction_text(p)})^{k}, coefficient of {mono}")
                 for r in rows:
                     owner.append(len(labels) - 1)
-                    flat_rows.append(r)
+                    raw_rows.append(r)
+    # the free part of each row at the solution: Σ_col row[col] · (dependence of parameter col on the free ones)
+    columns = [deps for _, deps in affine]
     chosen: List[str] = []
     rank = 0
     last = -1
-    for j in greedy_independent(flat_rows, n):
+    for j in greedy_independent_image(raw_rows, columns, nfree):
         rank += 1
         if owner[j] != last:
             chosen.append(labels[owner[j]])

@@ -28,7 +28,7 @@ from typing import Dict, Iterable, List, Sequence, Tuple
 
 import flint
 
-__all__ = ["Echelon", "IncrementalBasis", "consistent", "greedy_independent", "SparseRow"]
+__all__ = ["Echelon", "IncrementalBasis", "consistent", "greedy_independent", "greedy_independent_image", "SparseRow"]
 
 SparseRow = Dict[int, object]
 
@@ -146,6 +146,72 @@ def greedy_independent(rows: Sequence[SparseRow], ncols: int) -> List[int]:
                 return _greedy_exact(rows, ncols)
             mat[c, j] = int(q.p) * pow(den, -1, p) % p
     reduced, rank = mat.rref()
+    pivots: List[int] = []
+    for i in range(rank):
+        for j in range(pivots[-1] + 1 if pivots else 0, n):
+            if int(reduced[i, j]) != 0:
+                pivots.append(j)
+                break
+    return pivots
+
+
+def _mod(v) -> int | None:
+    q = _fmpq(v)
+    den = int(q.q) % GREEDY_PRIME
+    if den == 0:
+        return None
+    return int(q.p) * pow(den, -1, GREEDY_PRIME) % GREEDY_PRIME
+
+
+def greedy_independent_image(rows: Sequence[SparseRow], columns: Sequence[Dict[int, object]], nout: int) -> List[int]:
+    """:func:`greedy_independent` of the images ``Σ_c row[c]·columns[c]`` (a linear
+    map given column by column, ``columns[c] = {output index: value}``).
+
+    The images are formed and reduced modulo :data:`GREEDY_PRIME` (one matrix
+    product and one rref; same guarantees as :func:`greedy_independent`):
+    this is what lets ``fix`` advise on hundreds of free parameters without
+    rational arithmetic per row.  Falls back to the exact images if a
+    denominator is divisible by the prime.
+
+    >>> greedy_independent_image([{0: 1}, {1: 1}, {0: 1, 1: 1}], [{0: 1, 1: 1}, {0: 2, 1: 2}], 2)
+    [0]
+    """
+    rows = list(rows)
+    if not rows or nout == 0:
+        return []
+    p = GREEDY_PRIME
+    nin = len(columns)
+    left = flint.nmod_mat(len(rows), nin, p)
+    right = flint.nmod_mat(nin, nout, p)
+    exact = False
+    for i, r in enumerate(rows):
+        for c, v in r.items():
+            if v and c < nin:
+                m = _mod(v)
+                if m is None:
+                    exact = True
+                    break
+                left[i, c] = m
+    for c, col in enumerate(columns):
+        for k, v in col.items():
+            if v:
+                m = _mod(v)
+                if m is None:
+                    exact = True
+                    break
+                right[c, k] = m
+    if exact:
+        images = []
+        for r in rows:
+            img: Dict[int, Fraction] = {}
+            for c, v in r.items():
+                if c < nin:
+                    for k, w in columns[c].items():
+                        img[k] = img.get(k, Fraction(0)) + Fraction(v) * Fraction(w)
+            images.append({k: v for k, v in img.items() if v})
+        return _greedy_exact(images, nout)
+    reduced, rank = (left * right).transpose().rref()
+    n = len(rows)
     pivots: List[int] = []
     for i in range(rank):
         for j in range(pivots[-1] + 1 if pivots else 0, n):
