@@ -146,10 +146,15 @@ def greedy_independent(rows: Sequence[SparseRow], ncols: int) -> List[int]:
                 return _greedy_exact(rows, ncols)
             mat[c, j] = int(q.p) * pow(den, -1, p) % p
     reduced, rank = mat.rref()
+    return _pivot_columns(reduced, rank, n)
+
+
+def _pivot_columns(reduced, rank: int, n: int) -> List[int]:
+    """The pivot columns of a matrix in reduced row echelon form (first ``rank`` rows)."""
     pivots: List[int] = []
     for i in range(rank):
         for j in range(pivots[-1] + 1 if pivots else 0, n):
-            if int(reduced[i, j]) != 0:
+            if reduced[i, j] != 0:
                 pivots.append(j)
                 break
     return pivots
@@ -212,13 +217,7 @@ def greedy_independent_image(rows: Sequence[SparseRow], columns: Sequence[Dict[i
         return _greedy_exact(images, nout)
     reduced, rank = (left * right).transpose().rref()
     n = len(rows)
-    pivots: List[int] = []
-    for i in range(rank):
-        for j in range(pivots[-1] + 1 if pivots else 0, n):
-            if int(reduced[i, j]) != 0:
-                pivots.append(j)
-                break
-    return pivots
+    return _pivot_columns(reduced, rank, n)
 
 
 def _greedy_exact(rows: Sequence[SparseRow], ncols: int) -> List[int]:
@@ -230,13 +229,7 @@ def _greedy_exact(rows: Sequence[SparseRow], ncols: int) -> List[int]:
             if v:
                 flat[c * n + j] = _fmpq(v)
     reduced, rank = flint.fmpq_mat(ncols, n, flat).rref()
-    pivots: List[int] = []
-    for i in range(rank):
-        for j in range(pivots[-1] + 1 if pivots else 0, n):
-            if reduced[i, j] != zero:
-                pivots.append(j)
-                break
-    return pivots
+    return _pivot_columns(reduced, rank, n)
 
 
 class IncrementalBasis:
