@@ -27,10 +27,6 @@ class MultipleZeta(sympy.Function):
     0.037707672984847544011
     """
 
-    @classmethod
-    def eval(cls, *args):
-        return None
-
     def _eval_evalf(self, prec):
         indices = tuple(int(a) for a in self.args)
         # ``prec`` is in bits; ask for a few decimal digits more and round once
