@@ -109,39 +109,29 @@ class _Tokens:
 
     def term_span(self, i: int) -> Tuple[int, int]:
         """First and last token index of the term (product) containing token i."""
+        return self._term_edge(i, -1), self._term_edge(i, 1)
+
+    def _term_edge(self, i: int, step: int) -> int:
+        """The last significant token of the term containing token i, scanning
+        in direction ``step`` (±1) up to a sign, comma or unbalanced bracket."""
+        inward, outward = ("(", ")") if step > 0 else (")", "(")
         depth = 0
-        a = i
-        k = i - 1
-        while k >= 0:
+        edge = i
+        k = i + step
+        while 0 <= k < len(self.t):
             tok = self.t[k][1]
-            if tok == ")":
+            if tok == inward:
                 depth += 1
-            elif tok == "(":
+            elif tok == outward:
                 if depth == 0:
                     break
                 depth -= 1
             elif depth == 0 and (tok in (",", ";") or self.is_binary_sign(k)):
                 break
             if self.t[k][0] != "space" and tok:
-                a = k
-            k -= 1
-        depth = 0
-        b = i
-        k = i + 1
-        while k < len(self.t):
-            tok = self.t[k][1]
-            if tok == "(":
-                depth += 1
-            elif tok == ")":
-                if depth == 0:
-                    break
-                depth -= 1
-            elif depth == 0 and (tok in (",", ";") or self.is_binary_sign(k)):
-                break
-            if self.t[k][0] != "space" and tok:
-                b = k
-            k += 1
-        return a, b
+                edge = k
+            k += step
+        return edge
 
     def drop_term(self, i: int) -> None:
         """Remove the term containing token i (with its sign); ``0`` if it is alone."""
