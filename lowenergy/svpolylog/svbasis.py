@@ -42,6 +42,7 @@ from fractions import Fraction
 from typing import Dict, List, Mapping, Tuple
 
 from ..errors import InputError
+from ..integrand.model import poly_add
 from ..zeta.element import MZV, zeta
 from ..zeta.falphabet import FKey
 from ..zeta.format import join_terms, term_text
@@ -69,7 +70,11 @@ class SVGenerator:
 
 class _Echelon:
     """Incremental exact row echelon form over Q of sparse vectors, tracking
-    every pivot row as a combination of the inserted vectors."""
+    every pivot row as a combination of the inserted vectors.
+
+    Each new row is reduced against the earlier ones before it is kept, so it
+    vanishes at their pivots; reducing a vector against the rows in insertion
+    order therefore clears every pivot (no back-substitution needed)."""
 
     def __init__(self) -> None:
         self.rows: List[Tuple[FKey, Dict[FKey, Fraction], Dict[int, Fraction]]] = []
@@ -79,20 +84,9 @@ class _Echelon:
         combo: Dict[int, Fraction] = {}
         for pivot, row, rcombo in self.rows:
             c = v.get(pivot)
-            if not c:
-                continue
-            for k, a in row.items():
-                nv = v.get(k, Fraction(0)) - c * a
-                if nv:
-                    v[k] = nv
-                else:
-                    v.pop(k, None)
-            for i, a in rcombo.items():
-                nc = combo.get(i, Fraction(0)) + c * a
-                if nc:
-                    combo[i] = nc
-                else:
-                    combo.pop(i, None)
+            if c:
+                v = poly_add(v, row, -c)
+                combo = poly_add(combo, rcombo, c)
         return v, combo
 
     def insert(self, vec: Mapping[FKey, Fraction], label: int) -> bool:
@@ -103,30 +97,8 @@ class _Echelon:
         pivot = min(v)
         c = v[pivot]
         row = {k: a / c for k, a in v.items()}
-        rcombo = {i: -a / c for i, a in combo.items()}
-        rcombo[label] = rcombo.get(label, Fraction(0)) + 1 / c
-        # keep earlier rows reduced with respect to the new pivot
-        new_rows = []
-        for p, r, rc in self.rows:
-            f = r.get(pivot)
-            if f:
-                r = dict(r)
-                rc = dict(rc)
-                for k, a in row.items():
-                    nv = r.get(k, Fraction(0)) - f * a
-                    if nv:
-                        r[k] = nv
-                    else:
-                        r.pop(k, None)
-                for i, a in rcombo.items():
-                    nc = rc.get(i, Fraction(0)) - f * a
-                    if nc:
-                        rc[i] = nc
-                    else:
-                        rc.pop(i, None)
-            new_rows.append((p, r, rc))
-        new_rows.append((pivot, row, rcombo))
-        self.rows = new_rows
+        rcombo = poly_add({label: 1 / c}, combo, -1 / c)
+        self.rows.append((pivot, row, rcombo))
         return True
 
     def solve(self, vec: Mapping[FKey, Fraction]):
