@@ -100,6 +100,7 @@ from ..expansion.result import Expansion
 from ..integrand.model import Integrand, LinearExponent, Term
 from ..zeta.element import MZV, g_value
 from ..zeta.table import TableStore, default_store
+from .construct import _cmul
 
 __all__ = [
     "sphere_raw_series",
@@ -126,23 +127,6 @@ def _radd(acc: _Raw, x: _Raw, f=1) -> None:
             acc[k] = y
         else:
             acc.pop(k, None)
-
-
-def _gen_key(g):
-    return (sum(g), g)
-
-
-def _rmul(a: _Raw, b: _Raw) -> _Raw:
-    out: _Raw = {}
-    for ka, va in a.items():
-        for kb, vb in b.items():
-            k = kb if not ka else (ka if not kb else tuple(sorted(ka + kb, key=_gen_key)))
-            y = out.get(k, 0) + va * vb
-            if y:
-                out[k] = y
-            else:
-                out.pop(k, None)
-    return out
 
 
 class SphereValues:
@@ -210,7 +194,7 @@ class SphereValues:
             right = self.z_raw(q)
             if not right:
                 continue
-            _radd(acc, _rmul(left, right), -1 if j % 2 else 1)
+            _radd(acc, _cmul(left, right), -1 if j % 2 else 1)  # _radd drops the zeros
         self._k[w] = acc
         return acc
 
