@@ -533,6 +533,22 @@ def write_rows(rows: List[Dict[str, object]], path, fmt: Optional[str] = None,
 # the computation
 # ---------------------------------------------------------------------------
 
+def _convolve(g: Sequence[Fraction], binom: List[List[Fraction]], m: int) -> List[Fraction]:
+    """Σ_{m'} binom_{m'}(z) g_{m−m'}: the coefficient of x^m, as a list of powers of z."""
+    acc: List[Fraction] = []
+    for mp in range(m + 1):
+        gc = g[m - mp]
+        if not gc:
+            continue
+        b = binom[mp]
+        if len(acc) < len(b):
+            acc.extend([Fraction(0)] * (len(b) - len(acc)))
+        for power, bc in enumerate(b):
+            if bc:
+                acc[power] += bc * gc
+    return acc
+
+
 def _m_range(shift: int, coeff: Fraction, levels: int) -> range:
     """Powers m whose pole location ``-(shift + m + 1)/coeff`` lies in [-levels, levels]."""
     span = levels * abs(coeff)
@@ -569,17 +585,7 @@ def _endpoint_poles(
         series = g_series_at_zero(u, order)
         for k, g in series.items():
             for m in m_values:
-                acc: List[Fraction] = []
-                for mp in range(m + 1):
-                    gc = g[m - mp]
-                    if not gc:
-                        continue
-                    b = binom[mp]
-                    if len(acc) < len(b):
-                        acc.extend([Fraction(0)] * (len(b) - len(acc)))
-                    for power, bc in enumerate(b):
-                        if bc:
-                            acc[power] += bc * gc
+                acc = _convolve(g, binom, m)
                 if not any(acc):
                     continue
                 slot = expansions.setdefault((m, k), {})
@@ -669,17 +675,7 @@ def _endpoint_poles_flat(
         series = g_series_at_zero(u, order)
         for k, g in series.items():
             for m in m_values:
-                acc: List[Fraction] = []
-                for mp in range(m + 1):
-                    gc = g[m - mp]
-                    if not gc:
-                        continue
-                    b = binom[mp]
-                    if len(acc) < len(b):
-                        acc.extend([Fraction(0)] * (len(b) - len(acc)))
-                    for power, bc in enumerate(b):
-                        if bc:
-                            acc[power] += bc * gc
+                acc = _convolve(g, binom, m)
                 if not any(acc):
                     continue
                 slot = expansions.setdefault((m, k), {})
