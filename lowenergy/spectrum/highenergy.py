@@ -47,8 +47,10 @@ multiplied by a power of ``L_0`` so that no division is needed, and the part
 of the highest power of E must vanish.
 
 The domain-specific parts (saddle, Gaussian, quadrature) live in
-:class:`IntervalSaddle`; a sphere saddle is a second class with the same
-methods, registered in :data:`SADDLES`.
+:class:`IntervalSaddle`; :class:`SphereSaddle` does the same for sphere
+integrands ``(1/π) ∫ d²z |z|^(2aS)|1-z|^(2bT) …`` (real saddle ``z* = x*``,
+two-dimensional Gaussian, single-valued ``L_w`` at ``z = z̄ = z*``; derived in
+its docstring).  :data:`SADDLES` maps the integrand's ``domain`` to the class.
 """
 
 from __future__ import annotations
@@ -67,6 +69,7 @@ from .xfunctions import XFunction
 
 __all__ = [
     "IntervalSaddle",
+    "SphereSaddle",
     "SADDLES",
     "saddle_for",
     "LeadingTerm",
@@ -159,7 +162,15 @@ class IntervalSaddle:
         out = out + g * h3 * h3 * inv_kappa ** 3 * Fraction(5, 24)
         return out
 
+    def value_and_correction(self, term: "_SaddleTerm") -> Tuple[XFunction, XFunction]:
+        """``(g(x*), Gaussian 1/E correction of g)`` for one term, exact in x*."""
+        g = term.g()
+        return g, self.gaussian_correction(g)
+
     # -- the integral itself -------------------------------------------------------
+    def check_quadrature(self) -> None:
+        """Quadrature on a ray is available on the interval (it converges for a*s, b*t > 0)."""
+
     def reduced_integral(self, terms: Sequence["_SaddleTerm"], xs: Fraction, E: Fraction,
                          digits: int = 20) -> Tuple[mpmath.mpf, mpmath.mpf]:
         """``I(s, t)/(K(E, x*) E^d)`` on the ray by quadrature, and its error estimate.
@@ -229,7 +240,122 @@ class IntervalSaddle:
             return +value, +error
 
 
-SADDLES = {"interval": IntervalSaddle}
+# ---------------------------------------------------------------------------
+# the sphere saddle
+# ---------------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class SphereSaddle(IntervalSaddle):
+    """The saddle of ``|z|^(2 a S)|1-z|^(2 b T)`` on the plane (``(1/π) ∫ d²z``).
+
+    ``a``, ``b``: the coefficients of S in the exponent of ``|z|²`` and of T in
+    that of ``|1-z|²`` (``a = b = -1`` for ``abs(z)^(-2*S-2)*abs(1-z)^(-2*T-2)``).
+
+    **Saddle.**  With ``A = a S``, ``B = b T`` the exponent is
+    ``A log|z|² + B log|1-z|² = Re φ(z)``, ``φ(z) = 2 A log z + 2 B log(1-z)``
+    holomorphic, so its critical points are those of ``φ``:
+    ``φ'(z) = 2A/z - 2B/(1-z) = 0`` gives ``A(1-z) = B z``, i.e.
+
+        z* = A/(A + B)      (= S/(S + T) for a = b = -1),
+
+    real, and in ``(0, 1)`` exactly when ``A`` and ``B`` have the same sign
+    (the interval's ``x*``).  A harmonic exponent has no maximum: ``z*`` is a
+    genuine saddle, ``φ(z) ≈ φ(z*) - κ E (z - z*)²`` with ``E = A + B`` and
+    ``κ = 1/(z*(1-z*))`` as on the interval, so ``Re φ`` falls along the real
+    axis (``z = z* + u``) and rises along the imaginary one (``z = z* + i v``).
+
+    **Gaussian, two-dimensional.**  The plane integral converges only for
+    ``Re A > 0``, ``Re B > 0``, ``Re(A + B) < 1``; at large ``|S|, |T|`` it is
+    its analytic continuation.  Rotating ``v = ±i w`` (the rotation of
+    Kawai, Lewellen & Tye, Nucl. Phys. B 269 (1986)) turns ``z, z̄`` into
+    independent real variables ``ξ = u - w``, ``η = u + w`` near ``z*``
+    (``d²z = du dv = ±(i/2) dξ dη``), and the integrand factorizes:
+    ``|z|^(2A) -> ξ^A η^A`` etc., ``L_w(z) = Σ c_uv G(u; z) G(v; z̄) ->
+    Σ c_uv G(u; ξ) G(v; η)`` (:func:`lowenergy.svpolylog.construct.sv_polylog`;
+    the G's are analytic near a point of (0, 1)).  Laplace's method in ξ and
+    in η (the interval's, once each) gives
+
+        I ≈ i σ · K_sph(E, z*) · E^d · [ L(z*) + N(z*)/E + O(1/E²) ],
+        K_sph(E, z*) = z*^(2A) (1-z*)^(2B) · z*(1-z*)/E,
+
+    the two-dimensional Gaussian ``(1/π) · π z*(1-z*)/E``, with
+    ``σ = sign(Im E)`` fixed by the direction in which the rotation
+    converges; ``L = g(z*, z*)`` (the top-degree prefactor times
+    ``|z|^(2α)|1-z|^(2β) L_w`` at ``z = z̄ = z*``: real numbers), and the
+    ``1/E`` term of a product ``p(ξ) q(η)`` is ``D[p] q + p D[q]`` with ``D``
+    the interval's second Laplace term (:meth:`IntervalSaddle.gaussian_correction`).
+
+    **Where it holds.**  For the flat factor the continuation is
+    ``Θ(A, B) · B(A, B)²`` with ``Θ = sin πA sin πB/(π sin π(A+B))``
+    (reflection A&S 6.1.17 applied to the Dotsenko–Fateev closed form), and
+    ``Θ -> i σ/(2π)`` up to ``O(e^(-2π |Im A|))`` off the real axis: the
+    prediction above holds on complex rays ``E = |E| e^(iθ)``, ``0 < |θ| < π``
+    (the saddle ``z*`` stays real).  On real rays Θ oscillates and has the
+    U-channel poles of ``Γ(1 + S + T)``; there the saddle terms describe the
+    integral only up to such factors (for insertions they differ: e.g. for
+    ``log|z|²`` by ``π(cot πA - cot π(A+B))``).  Exponentiation checks compare
+    orders and are unaffected by the common factor.
+
+    No quadrature check: at large ``|S|, |T|`` the plane integral diverges
+    (it is defined by continuation), so :meth:`reduced_integral` refuses;
+    the tests validate the saddle terms against the closed forms on complex
+    rays (Stirling's series, A&S 6.1.41; digamma asymptotics, A&S 6.3.18).
+    """
+
+    domain: str = "sphere"
+
+    def check_saddle(self, xs) -> Fraction:
+        xs = Fraction(xs)
+        if not 0 < xs < 1:
+            raise InputError(f"the saddle z* = {xs} lies outside 0 < z* < 1 on the real axis",
+                             hint="choose angles with 0 < z* < 1 (S and T of the same sign for |z|^(-2S-2)|1-z|^(-2T-2))")
+        return xs
+
+    def description(self, variables: Tuple[str, str]) -> Dict[str, str]:
+        d = super().description(variables)
+        d["saddle"] = d["saddle"].replace("x*", "z*")
+        d["factor"] = ("I = i*sign(Im E) * K(E, z*) * E^degree * (leading + next/E + ...) on complex rays, "
+                       "K(E, z*) = z*^(2E z*) (1-z*)^(2E (1-z*)) z* (1-z*)/E (two-dimensional Gaussian); "
+                       "on real rays an oscillating factor with the U-channel poles replaces i*sign(Im E)/(2 pi)")
+        return d
+
+    def value_and_correction(self, term: "_SaddleTerm") -> Tuple[XFunction, XFunction]:
+        """``g(z*, z*)`` and ``D_ξ g + D_η g`` at ``ξ = η = z*`` (see the class docstring)."""
+        # lazy: a later layer (single-valued polylogarithms)
+        from ..svpolylog.construct import sv_polylog
+
+        pairs = sv_polylog(term.word) if term.word else {((), ()): MZV.one()}
+        value = XFunction()
+        correction = XFunction()
+        memo: Dict[Tuple[int, ...], Tuple[XFunction, XFunction]] = {}
+
+        def side(word):
+            if word not in memo:
+                p = XFunction.monomial(term.alpha, term.beta, 1, word)
+                memo[word] = (p, self.gaussian_correction(p))
+            return memo[word]
+
+        for (u, v), c in pairs.items():
+            if not c:
+                continue
+            p, dp = side(u)
+            q, dq = side(v)
+            value = value + (p * q).scale(c)
+            correction = correction + (dp * q + p * dq).scale(c)
+        return value, correction
+
+    def check_quadrature(self) -> None:
+        raise InputError(
+            "no quadrature check on the sphere at large |S|, |T|: the plane integral converges only for "
+            "Re(a*S) > 0, Re(b*T) > 0, Re(a*S + b*T) < 1 and is its analytic continuation beyond "
+            "(with the U-channel poles on real rays)",
+            hint="drop --ray for sphere files; the saddle terms are checked against closed forms in the tests")
+
+    def reduced_integral(self, terms, xs, E, digits: int = 20):
+        self.check_quadrature()
+
+
+SADDLES = {"interval": IntervalSaddle, "sphere": SphereSaddle}
 
 
 def _linear_text(c: Fraction, name: str) -> str:
@@ -280,11 +406,16 @@ def saddle_for(integrands: Sequence[Integrand]) -> IntervalSaddle:
         raise InputError("no integrand given")
     first = integrands[0]
     a = b = None
+    domain0 = getattr(first, "domain", "interval")
     for itg in integrands:
         domain = getattr(itg, "domain", "interval")
         if domain not in SADDLES:
             raise InputError(f"no saddle-point analysis for the domain {domain!r} yet", source=itg.source,
-                             hint="the interval (0 < x < 1) is supported")
+                             hint="the interval (0 < x < 1) and the sphere are supported")
+        if domain != domain0:
+            raise InputError(f"the domains differ between the files: {domain0} in {first.source} but "
+                             f"{domain} in {itg.source}", source=itg.source,
+                             hint="every file of the family must be an interval or every one a sphere integrand")
         if tuple(itg.variables) != tuple(first.variables) or itg.integration_variable != first.integration_variable:
             raise InputError(
                 f"the variables differ between the files: {list(first.variables)} "
@@ -299,6 +430,8 @@ def saddle_for(integrands: Sequence[Integrand]) -> IntervalSaddle:
         for term in itg.terms:
             for what, e, want_var, name in (("x", term.x_exp, 0, s), ("1-x", term.y_exp, 1, t)):
                 label = xn if what == "x" else f"(1-{xn})"
+                if domain0 == "sphere":
+                    label = f"abs({label.strip('()')})"
                 if e.var != want_var:
                     raise InputError(
                         f"the exponent of {label} has no {name} in it, so the term has no fixed-angle saddle"
@@ -317,7 +450,7 @@ def saddle_for(integrands: Sequence[Integrand]) -> IntervalSaddle:
                     hint="all terms (and files) must share the s- and t-dependence of the exponents")
     if a is None:
         raise InputError("the integrands are zero", source=first.source)
-    return IntervalSaddle(Fraction(a), Fraction(b))
+    return SADDLES[domain0](Fraction(a), Fraction(b))
 
 
 def _saddle_terms(itg: Integrand) -> List[_SaddleTerm]:
@@ -362,12 +495,14 @@ def leading_term(itg: Integrand, saddle: Optional[IntervalSaddle] = None) -> Lea
     lead = XFunction()
     nxt = XFunction()
     for term in terms:
-        g = term.g()
         top = _prefactor_on_ray(term.prefactor, d, sad)
+        below = _prefactor_on_ray(term.prefactor, d - 1, sad) if d >= 1 else XFunction()
+        if not top and not below:
+            continue
+        g, correction = sad.value_and_correction(term)
         if top:
             lead = lead + top * g
-            nxt = nxt + top * sad.gaussian_correction(g)
-        below = _prefactor_on_ray(term.prefactor, d - 1, sad) if d >= 1 else XFunction()
+            nxt = nxt + top * correction
         if below:
             nxt = nxt + below * g
     if not lead:
@@ -591,6 +726,7 @@ def validate_ray(itg: Integrand, lt: LeadingTerm, xs, s_values: Sequence, saddle
                  digits: int = 20) -> List[QuadraturePoint]:
     """Quadrature of the integral on the ray of angle x* at the given values of the first variable."""
     sad = saddle or saddle_for([itg])
+    sad.check_quadrature()
     xs = sad.check_saddle(xs)
     L = lt.leading.numeric(xs, digits)
     N = lt.next.numeric(xs, digits)
@@ -758,6 +894,8 @@ def high_energy(integrands: Sequence[Integrand], *, grid: Sequence = DEFAULT_GRI
                 s_values: Sequence = (), digits: int = 15) -> HighEnergyReport:
     """Leading saddle terms of each file, relations between them, optional quadrature on one ray."""
     sad = saddle_for(integrands)
+    if ray is not None and s_values:
+        sad.check_quadrature()
     grid = [sad.check_saddle(x) for x in grid]
     lts = [leading_term(itg, sad) for itg in integrands]
     orders = len(lts) - 1
