@@ -111,6 +111,85 @@ def test_examples_readme_shows_the_current_output():
     assert res.exit_code == 0 and res.stdout.strip() in readme
     res = run("highenergy", *FAMILY, "--angles", "0.2,0.5,0.8", "--digits", 10)
     assert res.exit_code == 0
-    for line in res.stdout.splitlines():
+    sphere = [EX / f"shift_sphere_{k}.toml" for k in ("flat", "first", "second")]
+    res2 = run("highenergy", *sphere, "--angles", "0.2,0.5,0.8", "--digits", 10)
+    assert res2.exit_code == 0
+    assert "examples/shift_sphere_second.toml --angles 0.2,0.5,0.8 --digits 10" in readme
+    for line in res.stdout.splitlines() + res2.stdout.splitlines():
         line = line.replace(str(EX.parent) + "/", "")       # the README runs from the repository root
         assert line.rstrip() in readme, line
+
+
+# ---------------------------------------------------------------------------
+# t-channel shifts, --set, sphere files
+# ---------------------------------------------------------------------------
+
+T_FAMILY = [KN, f"{KN}*t*log(1-x)/2", f"{KN}*(t^2*log(1-x)^2/8 - t*log(1-x)/4)"]
+
+
+def test_shifts_in_the_t_channel(tmp_path):
+    # invented: B(-s, -t/(1+εc)), c = 1/2, expanded in ε like examples/shift_*.toml with s <-> t, x <-> 1-x:
+    # the poles sit at t = n(1 + εc) (Γ(-t') has its poles at t' = n, A&S 6.1.3), so δ1 = n/2, δ2 = 0
+    files = [write(tmp_path, f"t{k}.toml", body) for k, body in enumerate(T_FAMILY)]
+    res = run("shifts", *files, "--levels", 3, "--channel", "t", "--json")
+    assert res.exit_code == 0, res.output
+    out = json.loads(res.stdout)
+    assert out["variable"] == "t" and out["consistent"]
+    assert len(out["rows"]) == 8
+    for row in out["rows"]:
+        n = int(row["level"])
+        assert row["mean_delta1"] == (f"{n}/2" if n % 2 else str(n // 2))
+        assert row["variance_delta1"] == "0" and row["mean_delta2"] == "0"
+    # the s-channel of the same family has unshifted poles: δ1 = 0 on every level
+    res = run("shifts", *files[:2], "--levels", 2, "--json")
+    assert res.exit_code == 0
+    assert {row["mean_delta1"] for row in json.loads(res.stdout)["rows"]} == {"0"}
+    text = run("shifts", *files[:2], "--levels", 1, "--channel", "t").stdout
+    assert text.startswith("poles in t = n + eps*delta1")
+    bad = run("shifts", *files[:2], "--channel", "u")
+    assert bad.exit_code == 2 and "unknown --channel" in bad.stderr
+
+
+def test_set_gives_parameters_values(tmp_path):
+    flat = write(tmp_path, "f.toml", KN)
+    first = write(tmp_path, "p.toml", f"{KN}*b1*t*log(1-x)", 'parameters = ["b1"]\n')
+    # refused without values, with a hint naming --set
+    res = run("highenergy", flat, first, "--angles", "0.5")
+    assert res.exit_code == 2 and "--set" in res.stderr
+    res = run("shifts", flat, first, "--levels", 1, "--channel", "t")
+    assert res.exit_code == 2 and "--set" in res.stderr
+    # b1 = 1/2 is the T_FAMILY order 1: same shifts (δ1 = n/2) and the same saddle terms
+    res = run("shifts", flat, first, "--levels", 2, "--channel", "t", "--set", "b1=1/2", "--json")
+    assert res.exit_code == 0, res.output
+    assert [r["mean_delta1"] for r in json.loads(res.stdout)["rows"]] == ["1/2", "1/2", "1", "1", "1"]
+    fixed = write(tmp_path, "q.toml", T_FAMILY[1])
+    a = json.loads(run("highenergy", flat, first, "--angles", "0.3", "--set", "b1=1/2", "--json").stdout)
+    b = json.loads(run("highenergy", flat, fixed, "--angles", "0.3", "--json").stdout)
+    assert a["exact"][1]["leading"] == b["exact"][1]["leading"] and a["grid"][1]["leading"] == b["grid"][1]["leading"]
+    for bad, msg in ((["--set", "b2=1"], "no file has"), (["--set", "b1=x"], "not a rational"),
+                     (["--set", "b1"], "name=value"), (["--set", "b1=1,b1=2"], "set twice")):
+        res = run("highenergy", flat, first, "--angles", "0.5", *bad)
+        assert res.exit_code == 2 and msg in res.stderr and "Traceback" not in res.output
+
+
+SPH = 'domain = "sphere"\nvariables = ["S", "T"]\n'
+SKN = "abs(z)^(-2*S-2)*abs(1-z)^(-2*T-2)"
+
+
+def test_highenergy_on_sphere_files(tmp_path):
+    files = [write(tmp_path, "s0.toml", SKN, SPH),
+             write(tmp_path, "s1.toml", f"{SKN}*S*T*log(abs(z))*log(abs(1-z))", SPH),
+             write(tmp_path, "s2.toml", f"{SKN}*S^2*T^2*log(abs(z))^2*log(abs(1-z))^2/2", SPH)]
+    res = run("highenergy", *files, "--angles", "0.5", "--json")
+    assert res.exit_code == 0, res.output
+    out = json.loads(res.stdout)
+    assert out["saddle"] == "z* = S/(S + T)" and out["relations"][0]["holds"]
+    # flat factor at z* = 1/2: 1/(z*(1-z*))^2 = 16 (see tests/spectrum/test_highenergy_sphere.py)
+    assert float(out["grid"][0]["leading"]) == 16.0
+    out_csv = tmp_path / "o.csv"
+    res = run("highenergy", files[0], "--ray", "0.5", "--csv", out_csv)
+    assert res.exit_code == 2 and "no quadrature check on the sphere" in res.stderr
+    assert not out_csv.exists()
+    interval = write(tmp_path, "i.toml", "x^(-S-1)*(1-x)^(-T-1)", 'variables = ["S", "T"]\n')
+    res = run("highenergy", files[0], interval)
+    assert res.exit_code == 2 and "domains differ" in res.stderr

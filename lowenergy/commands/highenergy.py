@@ -54,6 +54,49 @@ def _direction(text: str, variables, saddle) -> Fraction:
     return saddle.saddle_of_direction(point[variables[0]], point[variables[1]])
 
 
+def _assignments(items, what: str = "--set"):
+    """``["b1=1/2", "b2=-3,b3=0.25"]`` -> {name: Fraction} (never evaluated)."""
+    from ..errors import InputError
+
+    values = {}
+    for item in items or []:
+        for part in item.split(","):
+            if not part.strip():
+                continue
+            if "=" not in part:
+                raise InputError(f"expected name=value in {what}, got {part.strip()!r}", term=part.strip()[:60],
+                                 hint="write e.g. --set b1=1/2 --set b2=-3")
+            name, value = (p.strip() for p in part.split("=", 1))
+            if not re.fullmatch(r"[A-Za-z_][A-Za-z0-9_]{0,40}", name):
+                raise InputError(f"not a parameter name in {what}: {name!r}", term=name[:60])
+            if name in values:
+                raise InputError(f"parameter {name!r} is set twice in {what}", term=name)
+            values[name] = _rational(value, what)
+    return values
+
+
+def _read_family(files, assignments):
+    """Read the files and put the ``--set`` values into the parameters of each (exactly)."""
+    from ..constraints.fix import substitute
+    from ..errors import InputError
+    from ..integrand.reader import read_integrand
+
+    integrands = [read_integrand(f) for f in files]
+    values = _assignments(assignments)
+    known = set()
+    for itg in integrands:
+        known.update(itg.parameters)
+    unknown = sorted(set(values) - known)
+    if unknown:
+        raise InputError(f"--set names parameters that no file has: {', '.join(unknown)}",
+                         hint="the parameters are: " + (", ".join(sorted(known)) or "(none)"))
+    out = []
+    for itg in integrands:
+        mine = {k: v for k, v in values.items() if k in itg.parameters}
+        out.append(substitute(itg, mine) if mine else itg)
+    return out
+
+
 @app.command(epilog=_exit_codes("1 a relation or consistency check failed"))
 @user_errors
 def highenergy(
@@ -72,20 +115,22 @@ def highenergy(
     as_json: bool = typer.Option(False, "--json", help="print one JSON object"),
     plot: Optional[str] = typer.Option(None, "--plot", metavar="FILE", help="PNG: leading terms on the grid (and the ray ratios)"),
     digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numbers"),
+    assign: Optional[List[str]] = typer.Option(None, "--set", metavar="NAME=VALUE",
+                                               help="value of a free parameter, exact rational (repeatable)"),
 ) -> None:
     """Fixed-angle high energy: exact saddle terms per order, exponentiation check, quadrature on a ray.
 
+    Interval and sphere integrand files.  Free parameters need values (--set).
     Exit 0: all relations hold; 1: a relation fails; 2: bad input.
     """
     from ..errors import InputError
-    from ..integrand.reader import read_integrand
     from ..spectrum.highenergy import high_energy, saddle_for
 
     if digits < 4 or digits > 60:
         raise InputError(f"--digits must be between 4 and 60, got {digits}")
     if len(files) > 12:
         raise InputError("at most 12 files (orders 0..11)")
-    integrands = [read_integrand(f) for f in files]
+    integrands = _read_family(files, assign)
     saddle = saddle_for(integrands)
     grid = _list(angles, "--angles")
     for d in direction or []:
@@ -162,13 +207,18 @@ def shifts(
     plot: Optional[str] = typer.Option(None, "--plot", metavar="FILE", help="PNG: <delta1> against n on a trajectory"),
     trajectory: int = typer.Option(0, "--trajectory", metavar="K", help="plot J = J_max(n) - K (0: leading trajectory)"),
     digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numbers"),
+    channel: Optional[str] = typer.Option(None, "--channel", metavar="VAR",
+                                          help="pole variable: the first (s-channel, default) or the second (t-channel)"),
+    assign: Optional[List[str]] = typer.Option(None, "--set", metavar="NAME=VALUE",
+                                               help="value of a free parameter, exact rational (repeatable)"),
 ) -> None:
     """Mass shifts per level and spin: residue, <delta1>, variance, <delta2>, consistency residuals.
 
+    Poles in the first variable by default; --channel t (the second variable's name) takes the
+    poles in the second variable, with partial waves in the first.  Free parameters need values (--set).
     Exit 0: consistent; 1: a consistency residual is non-zero; 2: bad input.
     """
     from ..errors import InputError
-    from ..integrand.reader import read_integrand
     from ..spectrum import residues
     from ..spectrum.shifts import plot_shifts, spectrum_shifts
 
@@ -181,15 +231,26 @@ def shifts(
     if trajectory < 0:
         raise InputError("--trajectory must be 0 or positive")
     dimension = _rational(dim, "--dim")
-    integrands = [read_integrand(f) for f in files]
+    integrands = _read_family(files, assign)
     first = integrands[0]
     for itg in integrands[1:]:
         if tuple(itg.variables) != tuple(first.variables):
             raise InputError(f"the variables differ between the files: {list(first.variables)} in {first.source} "
                              f"but {list(itg.variables)} in {itg.source}", source=itg.source,
                              hint="use the same variable names in every file of the family")
+    var = 0
+    if channel is not None:
+        if channel not in first.variables:
+            raise InputError(f"unknown --channel {channel!r}", term=channel[:60],
+                             hint=f"use {first.variables[0]} (poles in the first variable) or "
+                             f"{first.variables[1]} (poles in the second)")
+        var = list(first.variables).index(channel)
+    for itg in integrands:
+        if itg.parameters:
+            raise InputError(f"free parameters {list(itg.parameters)}: the shifts need numbers", source=itg.source,
+                             hint="give their values with --set NAME=VALUE (exact rationals)")
     tables = [residues(itg, levels) for itg in integrands]
-    table = spectrum_shifts(tables, dimension, levels=range(1, levels + 1), digits=digits)
+    table = spectrum_shifts(tables, dimension, var=var, levels=range(1, levels + 1), digits=digits)
     if plot:
         plot_shifts(table, plot, offset=trajectory)
     if csv:

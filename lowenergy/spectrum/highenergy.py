@@ -146,6 +146,8 @@ class IntervalSaddle:
             "saddle": saddle,
             "energy": f"E = {lin_s} + {lin_t}".replace("+ -", "- "),
             "factor": "K(E, x*) = x*^(E x*) (1-x*)^(E (1-x*)) sqrt(2 pi x* (1-x*)/E)",
+            "form": "I = K(E, x*) * E^degree * (leading + next/E + ...)",
+            "at": "x*",
         }
 
     # -- Laplace's method ----------------------------------------------------------
@@ -314,9 +316,10 @@ class SphereSaddle(IntervalSaddle):
     def description(self, variables: Tuple[str, str]) -> Dict[str, str]:
         d = super().description(variables)
         d["saddle"] = d["saddle"].replace("x*", "z*")
-        d["factor"] = ("I = i*sign(Im E) * K(E, z*) * E^degree * (leading + next/E + ...) on complex rays, "
-                       "K(E, z*) = z*^(2E z*) (1-z*)^(2E (1-z*)) z* (1-z*)/E (two-dimensional Gaussian); "
-                       "on real rays an oscillating factor with the U-channel poles replaces i*sign(Im E)/(2 pi)")
+        d["form"] = "I = i*sign(Im E) * K(E, z*) * E^degree * (leading + next/E + ...) on complex rays E"
+        d["factor"] = ("K(E, z*) = z*^(2E z*) (1-z*)^(2E (1-z*)) z* (1-z*)/E (two-dimensional Gaussian; "
+                       "on real rays an oscillating factor with the U-channel poles replaces i*sign(Im E)/(2 pi))")
+        d["at"] = "z-bar = z*"
         return d
 
     def value_and_correction(self, term: "_SaddleTerm") -> Tuple[XFunction, XFunction]:
@@ -424,7 +427,8 @@ def saddle_for(integrands: Sequence[Integrand]) -> IntervalSaddle:
                 source=itg.source, hint="use the same variable names in every file of the family")
         if itg.parameters:
             raise InputError(f"free parameters {list(itg.parameters)}: the high-energy and spectrum checks need numbers",
-                             source=itg.source, hint="fix them first, e.g. with `lowenergy fix ... --write`")
+                             source=itg.source, hint="give their values (command line: --set NAME=VALUE; library: "
+                             "lowenergy.constraints.fix.substitute) or fix them first with `lowenergy fix ... --write`")
         s, t = itg.variables
         xn = itg.integration_variable
         for term in itg.terms:
@@ -809,7 +813,8 @@ class HighEnergyReport:
 
     def to_dict(self) -> Dict[str, object]:
         return {"variables": list(self.variables), **self.saddle.description(self.variables),
-                "form": "I = K(E, x*) * E^degree * (leading + next/E + O(1/E^2)), functions at x = x*",
+                "form": self.saddle.description(self.variables)["form"].replace("...", "O(1/E^2)")
+                + f", functions at {self.xname} = {self.saddle.description(self.variables)['at']}",
                 "exact": self.exact_rows(), "grid": self.grid_rows(),
                 "relations": [{"relation": r.relation.text, "degree": r.degree, "holds": r.holds,
                                "exact_residual": "0" if r.holds else r.residual.text(self.xname),
@@ -818,8 +823,8 @@ class HighEnergyReport:
 
     def to_text(self) -> str:
         d = self.saddle.description(self.variables)
-        lines = [f"saddle: {d['saddle']};  {d['energy']};  I = K(E, x*) * E^degree * (leading + next/E + ...)",
-                 f"        {d['factor']}; functions below at {self.xname} = x*"]
+        lines = [f"saddle: {d['saddle']};  {d['energy']};  {d['form']}",
+                 f"        {d['factor']}; functions below at {self.xname} = {d['at']}"]
         for row in self.exact_rows():
             lines.append(f"order {row['order']} ({row['file']}): degree {row['degree']}")
             lines.append(f"  leading = {row['leading']}")

@@ -174,7 +174,9 @@ class ShiftTable:
                 "variance_delta1_numeric", "mean_delta2_numeric", "note"]
         rows = self.to_rows()
         widths = {c: max([len(c)] + [len(str(r[c])) for r in rows]) for c in cols}
-        lines = ["  ".join(c.rjust(widths[c]) for c in cols)]
+        lines = [f"poles in {self.variable} = n + eps*delta1 + eps^2*delta2 + ...; "
+                 f"partial waves in {self.other}, D = {self.dimension}"]
+        lines.append("  ".join(c.rjust(widths[c]) for c in cols))
         for r in rows:
             lines.append("  ".join(str(r[c]).rjust(widths[c]) for c in cols))
         if self.residuals:
