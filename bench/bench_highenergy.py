@@ -35,6 +35,11 @@ def main():
     timed("exact saddle terms + A2 = A1^2/2 on 9 angles (example family)", lambda: high_energy(itgs))
     heavy = integrand_from_text('integrand = "x^(-s-1)*(1-x)^(-t-1)*(s^2*t^2*G(0,1,0,1; x) + s*t*zeta(3)*Li(3, x))"')
     timed("exact saddle terms of a weight-4 insertion (one file)", lambda: leading_term(heavy))
+    sphere = [read_integrand(EX / f"shift_sphere_{k}.toml") for k in ("flat", "first", "second")]
+    timed("sphere: exact saddle terms + A2 = A1^2/2 on 9 angles (example family)", lambda: high_energy(sphere))
+    sheavy = integrand_from_text('domain = "sphere"\nvariables = ["S", "T"]\nintegrand = '
+                                 '"abs(z)^(-2*S-2)*abs(1-z)^(-2*T-2)*S^2*T^2*svpolylog(0,0,1,1; z)"')
+    timed("sphere: exact saddle terms of L_0011 (one file)", lambda: leading_term(sheavy))
     lt = leading_term(itgs[2])
     timed("quadrature on one ray, s = -10, -50, -200 (order-2 file, 20 digits)",
           lambda: validate_ray(itgs[2], lt, Fraction(1, 2), [-10, -50, -200], digits=20))
