@@ -60,6 +60,39 @@ Consequences (all tested):
 * the regularized value at 1 is ``Z · ~Z_y``; its coefficients are Brown's
   single-valued MZVs ``sv G(w; 1)`` (see :mod:`.svmap`).
 
+Computation
+-----------
+The fixed point is not iterated: it is solved degree by degree, exactly.
+
+* ``Z`` has no linear term (``G(0; 1) = G(1; 1) = 0``), so the degree-D part
+  of ``Z_y = Σ_v z_v Y_v`` has ``|v| ≥ 2`` and involves ``y1`` only below
+  degree D.  ``T = ~Z x1 ~Z^-1 = x1 + ...`` has no constant term, so the
+  degree-d part of ``Z_y T Z_y^-1`` involves ``Z_y`` only below degree d,
+  hence ``y1`` only below degree d - 1.  For d = 2, 3, ...: the degree-(d-1)
+  parts of all ``Y_v`` and of ``Z_y``, then ``y1_d``.  Every part is computed
+  once and is final.
+* ``Z_y^-1 = S(Z_y)`` with the antipode ``S(x_w) = (-1)^|w| x_rev(w)``:
+  ``y1`` is a Lie series (by induction on the degree: if its parts below d
+  form a Lie series ℓ, then ``Z(x0, ℓ)`` is group-like, because substituting
+  primitive elements is a morphism of Hopf algebras, and the conjugate
+  ``Z(x0, ℓ) T Z(x0, ℓ)^-1`` of the Lie series T is Lie; its degree-d part is
+  ``y1_d``), so ``Z_y`` is group-like.  Likewise ``~Z^-1 = Σ (-1)^|w| z_w x_w``.
+* The products ``Y_v = y_{v1} Y_{v2...}`` are kept graded, ``Y_v[D] =
+  Σ_e (y_{v1})_e Y_{v2...}[D - e]``, so a product only pairs degrees that
+  fit under the truncation.
+* The associator's divergent words come from the shuffle recursion of
+  :func:`_associator_graded`, not from regularizing every word into
+  convergent ones.
+* Coefficients are ``{monomial id: flint.fmpq}`` during the construction and
+  become :class:`MZV` at the end.
+* ``L_w(1)`` needs only ``Z`` and ``Z_y`` (:func:`sv_value_at_one`), not the
+  table of all ``A_s``.
+
+The tests compare all of this with the first, straightforward construction
+(iterated on whole series, ``Z_y^-1`` by substitution; kept in
+``tests/svpolylog/fixed_point_reference.py``) at weights ≤ 8; measured times
+are printed by ``bench/bench_sv_table.py``.
+
 Data layout
 -----------
 Write ``~σ(L(z̄)) = Σ_s A_s(z̄) x_s`` with ``A_s(z̄) = Σ_v a_{s,v} G(v; z̄)``,
