@@ -277,6 +277,26 @@ def _hmul_into(out: dict, a: dict, b: dict, ring: _Ring) -> None:
             addmul(acc, ca, cb)
 
 
+def _run_length(w: Word, letter: int) -> int:
+    """Number of leading ``letter``s of ``w``."""
+    i = 0
+    while i < len(w) and w[i] == letter:
+        i += 1
+    return i
+
+
+def _negated_sum(level: dict, words, divisor: int) -> dict:
+    """``-(Σ_{u in words} level[u]) / divisor`` (absent words count as 0)."""
+    acc: dict = {}
+    for u in words:
+        c = level.get(u)
+        if c:
+            for m, v in c.items():
+                acc[m] = acc.get(m, 0) + v
+    factor = flint.fmpq(-1, divisor)
+    return {m: v * factor for m, v in acc.items() if v}
+
+
 def _associator_graded(n: int, store: TableStore, ring: _Ring) -> list:
     """``Z`` up to degree n, graded, coefficients in ``ring``.
 
@@ -297,26 +317,9 @@ def _associator_graded(n: int, store: TableStore, ring: _Ring) -> list:
     z = [{(): {0: _FONE}}]
     for k in range(1, n + 1):
         level: Dict[Word, dict] = {}
-
-        def minus_sum_over(words, divisor):
-            acc: dict = {}
-            for u in words:
-                c = level.get(u)
-                if c:
-                    for m, v in c.items():
-                        acc[m] = acc.get(m, 0) + v
-            factor = flint.fmpq(-1, divisor)
-            return {m: v * factor for m, v in acc.items() if v}
-
-        def leading(w, letter):
-            i = 0
-            while i < len(w) and w[i] == letter:
-                i += 1
-            return i
-
         words = all_words(k)
-        for w in sorted((w for w in words if w[-1] == 1), key=lambda w: leading(w, 1)):
-            a = leading(w, 1)
+        for w in sorted((w for w in words if w[-1] == 1), key=lambda w: _run_length(w, 1)):
+            a = _run_length(w, 1)
             if a == 0:
                 idx = word_to_indices(w)
                 sign = -1 if len(idx) % 2 else 1
@@ -328,16 +331,16 @@ def _associator_graded(n: int, store: TableStore, ring: _Ring) -> list:
                 continue
             else:
                 head, u = w[:a - 1], w[a:]
-                c = minus_sum_over((head + u[:i] + (1,) + u[i:] for i in range(1, len(u) + 1)), a)
+                c = _negated_sum(level, (head + u[:i] + (1,) + u[i:] for i in range(1, len(u) + 1)), a)
             c = {m: v for m, v in c.items() if v}
             if c:
                 level[w] = c
-        for w in sorted((w for w in words if w[-1] == 0), key=lambda w: leading(w[::-1], 0)):
-            m = leading(w[::-1], 0)
+        for w in sorted((w for w in words if w[-1] == 0), key=lambda w: _run_length(w[::-1], 0)):
+            m = _run_length(w[::-1], 0)
             if m == k:
                 continue
             u, tail = w[:k - m], (0,) * (m - 1)
-            c = minus_sum_over((u[:i] + (0,) + u[i:] + tail for i in range(len(u))), m)
+            c = _negated_sum(level, (u[:i] + (0,) + u[i:] + tail for i in range(len(u))), m)
             if c:
                 level[w] = c
         z.append(level)
@@ -441,8 +444,16 @@ class _Construction:
                     addmul(acc, zv, c)
         return _nonzero(out)
 
-    def value_at_one(self, word: Word) -> MZV:
-        """The coefficient of ``x_word`` in ``Z · ~Z_y``."""
+
+class _ValuesAtOne:
+    """``Z`` and ``Z_y`` up to a degree, enough for every regularized ``L_w(1)``."""
+
+    def __init__(self, built: _Construction) -> None:
+        self.max_weight = built.n
+        self.ring, self.z, self.zy = built.ring, built.z, built.zy
+
+    def value(self, word: Word) -> MZV:
+        """The coefficient of ``x_word`` in ``Z · ~Z_y``: ``Σ_j z_{w_1..w_j} (Z_y)_{w_n..w_(j+1)}``."""
         acc: dict = {}
         for j in range(len(word) + 1):
             a = self.z[j].get(word[:j])
@@ -664,16 +675,6 @@ def real_line_restriction(word: Iterable[int], store: TableStore | None = None) 
     """
     word = _check_word(word)
     return sv_table(_default_weight(word), store).real_line(word)
-
-
-class _ValuesAtOne:
-    """``Z`` and ``Z_y`` up to a degree, enough for every regularized ``L_w(1)``."""
-
-    def __init__(self, built: _Construction) -> None:
-        self.max_weight = built.n
-        self.ring, self.z, self.zy = built.ring, built.z, built.zy
-
-    value = _Construction.value_at_one
 
 
 _AT_ONE: Dict[str, _ValuesAtOne] = {}

@@ -227,7 +227,7 @@ def _zeta_word(idx):
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("weight", [9, 10, 11])
+@pytest.mark.parametrize("weight", [9, 10, 11, 12, 13])
 def test_sv_is_value_at_one_every_mzv(weight):
     from lowenergy.svpolylog.construct import sv_value_at_one
 
