@@ -187,9 +187,9 @@ def sphere_quadrature(words, points, h=0.0625, tmax=3.6, prec=128, vanishing=(0,
     ``R0 = {|w| < 1, Re w < 1/2}``, so ``∫_C g = ∫_R0 [g(w) + g(1-w) + g(1/w)/|w|^4]``.
     ``Lsv(w; z̄) = conj Lsv(w; z)`` (real coefficients), so the lower half
     of R0 doubles the real part of the upper half.  Polar coordinates around
-    0 with θ split at the corner π/3, ``r = ρ(θ) u^(1/α)`` with one α for all
-    points and pieces (the smallest power of r in ``r dr`` times the
-    integrand at w = 0: ``-2S``, ``-2T``, ``2(1+S+T)``; the other pieces then
+    0 with θ split at the corner π/3, ``r = ρ(θ) u^(1/α)`` with one α per
+    piece for all points (the smallest power of r in ``r dr`` times the
+    integrand at w = 0: ``-2S``, ``-2T``, ``2(1+S+T)``; the other points then
     carry a positive power of u), tanh-sinh in u and θ, which absorbs the
     logarithms at u = 0.  (An exp-sinh rule in log r was tried and needed
     many more nodes.)  ``vanishing = (v0, v1)``: the insertions vanish like
@@ -200,7 +200,8 @@ def sphere_quadrature(words, points, h=0.0625, tmax=3.6, prec=128, vanishing=(0,
     ctx.prec = prec
     try:
         pts = [(arb(mpmath.nstr(mpmath.mpf(s), 40)), arb(mpmath.nstr(mpmath.mpf(t), 40))) for s, t in points]
-        alpha = min(min(vanishing[0] - 2 * s, vanishing[1] - 2 * t, 2 * (1 + s + t)) for s, t in pts)
+        alphas = [min(vanishing[0] - 2 * s for s, _ in pts), min(vanishing[1] - 2 * t for _, t in pts),
+                  min(2 * (1 + s + t) for s, t in pts)]
         un = _de_nodes(h, tmax, 0, 1)
         third = mpmath.pi / 3
         tn = _de_nodes(h, tmax, 0, third) + _de_nodes(h, tmax, third, mpmath.pi)
@@ -211,25 +212,32 @@ def sphere_quadrature(words, points, h=0.0625, tmax=3.6, prec=128, vanishing=(0,
             c, s = th.cos(), th.sin()
             rho = 1 / (2 * c) if c > 0.5 else arb(1)
             for u, wu, ku in un:
-                r = rho * u ** (1 / alpha)
-                jac = 2 * wt * wu * rho * rho * u ** (2 / alpha - 1) / alpha   # r dr dθ; 2: the lower half
-                w = acb(r * c, r * s)
-                lw = single_valued(words, w, one - w)
-                l1w = single_valued(words, one - w, w)
-                linv = single_valued(words, 1 / w, (w - 1) / w)
-                a0 = 2 * r.log()                 # log|w|²
-                a1 = 2 * abs(one - w).log()      # log|1-w|²
-                for p, (S, T) in enumerate(pts):
-                    # g(w) = |w|^(-2S-2) |1-w|^(-2T-2), g(1-w) swaps, g(1/w)/|w|^4 = |w|^(2S+2T) |1-w|^(-2T-2)
-                    f0 = ((-S - 1) * a0 + (-T - 1) * a1).exp()
-                    f1 = ((-S - 1) * a1 + (-T - 1) * a0).exp()
-                    f2 = ((S + T) * a0 + (-T - 1) * a1).exp()
-                    for word in words:
-                        val = (f0 * lw[word].real + f1 * l1w[word].real + f2 * linv[word].real) * jac
-                        key = (p, word)
-                        fine[key] = fine.get(key, arb(0)) + val
-                        if kt % 2 == 0 and ku % 2 == 0:
-                            coarse[key] = coarse.get(key, arb(0)) + 4 * val
+                for piece, alpha in enumerate(alphas):
+                    r = rho * u ** (1 / alpha)
+                    jac = 2 * wt * wu * rho * rho * u ** (2 / alpha - 1) / alpha   # r dr dθ; 2: the lower half
+                    w = acb(r * c, r * s)
+                    a0 = 2 * r.log()                 # log|w|²
+                    a1 = 2 * abs(one - w).log()      # log|1-w|²
+                    if piece == 0:
+                        L = single_valued(words, w, one - w)
+                    elif piece == 1:
+                        L = single_valued(words, one - w, w)
+                    else:
+                        L = single_valued(words, 1 / w, (w - 1) / w)
+                    for p, (S, T) in enumerate(pts):
+                        # g(w) = |w|^(-2S-2) |1-w|^(-2T-2); g(1-w) swaps; g(1/w)/|w|^4 = |w|^(2S+2T) |1-w|^(-2T-2)
+                        if piece == 0:
+                            f = ((-S - 1) * a0 + (-T - 1) * a1).exp()
+                        elif piece == 1:
+                            f = ((-S - 1) * a1 + (-T - 1) * a0).exp()
+                        else:
+                            f = ((S + T) * a0 + (-T - 1) * a1).exp()
+                        for word in words:
+                            val = f * L[word].real * jac
+                            key = (p, word)
+                            fine[key] = fine.get(key, arb(0)) + val
+                            if kt % 2 == 0 and ku % 2 == 0:
+                                coarse[key] = coarse.get(key, arb(0)) + 4 * val
         out = {}
         for (p, word), v in fine.items():
             a = mpmath.mpf((v / arb.pi()).mid().str(35, radius=False))

@@ -102,7 +102,9 @@ def test_depth_two_insertions_against_plane_quadrature():
 
     Quadrature error: the tanh-sinh error roughly squares when the step
     halves; at these points |Q(1/16) - Q(1/8)| ~ 1e-8 |Q| and, measured once
-    when this test was written, |Q(1/16) - Q(1/32)| < 1e-17 |Q|.  Truncation:
+    when this test was written (with one radial map for all three pieces,
+    an earlier variant of sv_classical's rule), |Q(1/16) - Q(1/32)| ≤ 5e-16 |Q|;
+    the present rule at h = 1/16 differs from that Q(1/32) by ~1e-16 |Q|.  Truncation:
     the order-10 terms are ≤ 1.4e-15 of the value, the omitted orders ≥ 11
     a further factor |S| + |T| ≤ 0.03 (times slowly growing coefficients)
     smaller.  Points this close to 0 are needed because the MZV tables of the
