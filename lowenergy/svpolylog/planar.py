@@ -156,6 +156,47 @@ def _to_mpc(x: acb) -> mpmath.mpc:
     return mpmath.mpc(mpmath.mpf((int(a[0]), int(a[1]))), mpmath.mpf((int(b[0]), int(b[1]))))
 
 
+class _Lazy:
+    """``G`` and ``L`` values at one point, each computed when first needed."""
+
+    def __init__(self, owner: "PlaneValues", u: acb, ell: acb) -> None:
+        self.owner = owner
+        self.u = u
+        self.powers = [acb(1)]
+        for _ in range(owner.n):
+            self.powers.append(self.powers[-1] * ell)
+        self.ends: Dict[Word, acb] = {(): acb(1)}
+        self.g: Dict[Word, acb] = {}
+        self.gbar: Dict[Word, acb] = {}
+        self.values: Dict[Word, acb] = {}
+
+    def _end(self, v: Word) -> acb:
+        x = self.ends.get(v)
+        if x is None:
+            x = self.ends[v] = self.owner._polys[v](self.u)
+        return x
+
+    def _g(self, word: Word) -> acb:
+        x = self.g.get(word)
+        if x is None:
+            x = acb(0)
+            for k, v, c in self.owner._split[word]:
+                x += c * self.powers[k] * self._end(v)
+            self.g[word] = x
+            self.gbar[word] = x.conjugate()
+        return x
+
+    def __getitem__(self, word: Word) -> acb:
+        x = self.values.get(word)
+        if x is None:
+            x = acb(0)
+            for a, b, c in self.owner._terms[word]:
+                self._g(b)
+                x += c * self._g(a) * self.gbar[b]
+            self.values[word] = x
+        return x
+
+
 class PlaneValues:
     """``L_w`` for all words up to ``max_weight`` at ``w``, ``1 - w``, ``1/w``
     (``w ∈ R0``), to about ``digits`` digits relative to ``max(1, |L|)``."""
@@ -199,32 +240,12 @@ class PlaneValues:
 
     # -- evaluation --------------------------------------------------------------
 
-    def _base(self, w: acb) -> Dict[Word, acb]:
-        """``L_v(w)`` for all words v (w in R0)."""
-        one = acb(1)
+    def _base(self, w: acb) -> "_Lazy":
+        """``L_v(w)`` for the words v asked for (w in R0), computed on demand."""
         u = -(-w).log1p()
         if abs(u) > 2.5:
             raise NumericError(f"PlaneValues needs a point of |w| < 1, Re w < 1/2, got {_to_mpc(w)}")
-        ell = w.log()
-        ends = {v: p(u) for v, p in self._polys.items()}
-        ends[()] = one
-        powers = [one]
-        for k in range(1, self.n + 1):
-            powers.append(powers[-1] * ell)
-        g: Dict[Word, acb] = {}
-        for word in self.words:
-            total = acb(0)
-            for k, v, c in self._split[word]:
-                total += c * powers[k] * ends[v]
-            g[word] = total
-        gbar = {word: x.conjugate() for word, x in g.items()}
-        out: Dict[Word, acb] = {}
-        for word in self.words:
-            total = acb(0)
-            for a, b, c in self._terms[word]:
-                total += c * g[a] * gbar[b]
-            out[word] = total
-        return out
+        return _Lazy(self, u, w.log())
 
     def _one_minus(self, base: Dict[Word, acb], words: Iterable[Word]) -> Dict[Word, acb]:
         out = {}
