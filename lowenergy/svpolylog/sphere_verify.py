@@ -14,14 +14,15 @@ independently of the engine's algebra (no regularized values, no sv map):
   π/3; ``r = ρ(θ) u``) with the tanh-sinh rule (Takahasi & Mori 1974) on both
   axes, which absorbs the algebraic and logarithmic singularity at ``u = 0``;
   the upper half ``0 < θ < π`` is used with ``g(z) + g(z̄)``;
-* ``L_w(z)`` comes from :func:`~lowenergy.svpolylog.numeric.g_vector_numeric`
-  (``L_w = Σ c G(u; z) G(v; z̄)``, ``G(v; z̄) = conj G(v; z)``); words
-  ``0^n``, ``1^n`` are ``log^n|z|²/n!``, ``log^n|1-z|²/n!`` directly.
+* ``L_w`` at ``w``, ``1 - w``, ``1/w`` comes from
+  :class:`~lowenergy.svpolylog.planar.PlaneValues` (series in ``-log(1 - w)``
+  on R0, transported by ``z -> 1 - z``, ``z -> 1/z`` with the regularized
+  values at 1 and ∞); ``L_w(z̄) = conj L_w(z)``; words ``0^n``, ``1^n`` are
+  ``log^n|z|²/n!``, ``log^n|1-z|²/n!`` directly.
 
 The quadrature error is estimated from the rule with the double step (its
 nodes are a subset).  The series is the truncated Laurent series including
-the U-channel rows.  Slow (a few G-vectors per node) for genuine
-single-valued polylogarithms: ask for few digits.
+the U-channel rows.
 """
 
 from __future__ import annotations
@@ -35,8 +36,7 @@ from ..errors import InputError, NumericError
 from ..expansion.result import Expansion
 from ..expansion.verify import VerifyReport, _resolve_point, series_value
 from ..integrand.model import Integrand
-from .construct import sv_table
-from .numeric import g_vector_numeric
+from .planar import PlaneValues
 
 __all__ = ["verify_sphere", "sphere_integral"]
 
@@ -57,47 +57,27 @@ def _de_nodes(h: mpmath.mpf, tmax: float, a, b) -> List[Tuple[mpmath.mpf, mpmath
 
 
 class _LValues:
+    """``L_w`` at the images ``w``, ``1 - w``, ``1/w`` of a node ``w ∈ R0``."""
+
     def __init__(self, words: List[Word], digits: int) -> None:
         self.words = words
-        self.digits = digits
-        self.elementary = all(len(set(w)) <= 1 for w in words)
-        self.cutoff = mpmath.mpf(10) ** -(digits - 7)
-        n = max((len(w) for w in words), default=0)
-        self.n = n
-        self.table = sv_table(max(n, 1)) if not self.elementary else None
-        self.coef: Dict[Word, list] = {}
-        if self.table is not None:
-            for w in words:
-                self.coef[w] = [(u, v, mpmath.mpf(c.numeric(digits + 10))) for (u, v), c in self.table.terms(w).items()]
+        self.genuine = [w for w in words if len(set(w)) > 1]
+        n = max((len(w) for w in self.genuine), default=0)
+        self.plane = PlaneValues(n, digits) if self.genuine else None
 
-    def at(self, z: mpmath.mpc) -> Tuple[Dict[Word, mpmath.mpc], Dict[Word, mpmath.mpc]]:
-        """``L_w(z)`` and ``L_w(z̄)`` for all words."""
+    def at(self, w: mpmath.mpc, piece: int) -> Dict[Word, mpmath.mpc]:
+        """``L_v(z)`` for all words, ``z = (w, 1 - w, 1/w)[piece]``;
+        ``L_v(z̄) = conj L_v(z)``."""
+        z = (w, 1 - w, 1 / w)[piece]
         l0 = 2 * mpmath.log(abs(z))
         l1 = 2 * mpmath.log(abs(1 - z))
-        out, outc = {}, {}
-        g = None
-        for w in self.words:
-            if not w or len(set(w)) == 1:
-                x = (l0 if (w and w[0] == 0) else l1) ** len(w) / mpmath.factorial(len(w)) if w else mpmath.mpf(1)
-                out[w] = outc[w] = mpmath.mpc(x)
-                continue
-            if g is None:
-                if min(abs(z), abs(1 - z)) < self.cutoff:
-                    # a node extremely close to 0 or 1: L_w (w not 0^n, 1^n) is
-                    # at most logarithmic there and the node's tanh-sinh weight
-                    # (after r = rho u^(1/alpha)) is far below the target accuracy
-                    g = {}
-                else:
-                    g = g_vector_numeric(z, self.n, self.digits + 5)
-            if not g:
-                out[w] = outc[w] = mpmath.mpc(0)
-                continue
-            a = b = mpmath.mpc(0)
-            for u, v, c in self.coef[w]:
-                a += c * g[u] * mpmath.conj(g[v])
-                b += c * mpmath.conj(g[u]) * g[v]
-            out[w], outc[w] = a, b
-        return out, outc
+        out: Dict[Word, mpmath.mpc] = {}
+        if self.plane is not None:
+            out.update(self.plane.images(w, self.genuine, which=(piece,))[piece])
+        for v in self.words:
+            if len(set(v)) <= 1:
+                out[v] = mpmath.mpc((l0 if (v and v[0] == 0) else l1) ** len(v) / mpmath.factorial(len(v)) if v else 1)
+        return out
 
 
 def sphere_integral(integrand: Integrand, point: Mapping, digits: int = 12, level: int = 3):
@@ -126,21 +106,23 @@ def sphere_integral(integrand: Integrand, point: Mapping, digits: int = 12, leve
             B = t.y_exp.shift + (t.y_exp.coeff * values[t.y_exp.var] if t.y_exp.var is not None else 0)
             terms.append((c, mpmath.mpf(A), mpmath.mpf(B), t.word))
 
-        def g_pair(z):
-            L, Lc = lv.at(z)
+        def g_pair(w, piece):
+            """g(z) + g(z̄) at z = (w, 1 - w, 1/w)[piece]."""
+            z = (w, 1 - w, 1 / w)[piece]
+            L = lv.at(w, piece)
             l0, l1 = 2 * mpmath.log(abs(z)), 2 * mpmath.log(abs(1 - z))
             tot = mpmath.mpc(0)
-            for c, A, B, w in terms:
+            for c, A, B, word in terms:
                 f = mpmath.exp(A * l0 + B * l1)
-                tot += c * f * (L[w] + Lc[w])
+                tot += c * f * 2 * mpmath.re(L[word])
             return tot
 
         # the three pieces: w, 1-w, 1/w (with d²(1/w) = d²w/|w|^4) and their
         # power of |w| at w = 0: r^(alpha-1) dr with alpha = 2*exponent + 2
         pieces = [
-            (lambda w: w, min(2 * A + 2 for _, A, _, _ in terms), 0),
-            (lambda w: 1 - w, min(2 * B + 2 for _, _, B, _ in terms), 0),
-            (lambda w: 1 / w, min(-2 * A - 2 * B - 2 for _, A, B, _ in terms), 4),
+            (0, min(2 * A + 2 for _, A, _, _ in terms), 0),
+            (1, min(2 * B + 2 for _, _, B, _ in terms), 0),
+            (2, min(-2 * A - 2 * B - 2 for _, A, B, _ in terms), 4),
         ]
         for _, alpha, _ in pieces:
             if alpha <= 0:
@@ -161,11 +143,11 @@ def sphere_integral(integrand: Integrand, point: Mapping, digits: int = 12, leve
                 if u == 0 or wt * wu < mpmath.mpf(10) ** -(digits + 12):
                     continue
                 contrib = mpmath.mpc(0)
-                for move, alpha, power in pieces:
+                for piece, alpha, power in pieces:
                     # r = rho u^(1/alpha): r dr = rho^2 u^(2/alpha - 1) du / alpha
                     r = rho * u ** (1 / alpha)
                     w = mpmath.mpc(r * c, r * s)
-                    val = g_pair(move(w))
+                    val = g_pair(w, piece)
                     if power:
                         val = val / r ** power
                     contrib += val * rho ** 2 * u ** (2 / alpha - 1) / alpha
