@@ -19,7 +19,13 @@ that read one input at a time from a pipe):
 * the reply is "result", "package error" (a LowEnergyError) or "other
   exception" (with its type, listed below the table).
 
-The workers use MZV tables to weight 12 in ``--cache`` (built if missing).
+The workers use MZV tables to weight ``--table-weight`` (default 14, as the
+test suite) in ``--cache``, built before the run if missing.  Like the test
+suite, the workers do not build tables on demand (``auto_build`` off): an
+input that needs a higher weight ends in the package's ``TableError`` naming
+the ``tables build`` command.  Building tables is bounded, announced work of
+its own (minutes per weight above 16, see the README), not a reader hang, and
+it would otherwise be counted as a timeout once and then be cached.
 Prints the table (reader | inputs | result | package error | other exception
 | timeout > T s | memory > M MB), the slowest inputs and every escape.
 """
@@ -45,6 +51,8 @@ resource.setrlimit(resource.RLIMIT_AS, (4 << 30, 4 << 30))
 from lowenergy.errors import LowEnergyError
 from tests.fuzz.strategies import run_reader
 import lowenergy.zeta.expression, lowenergy.integrand.reader, lowenergy.constraints, lowenergy.tables
+from lowenergy.zeta.table import default_store
+default_store().auto_build = False  # as in the test suite: no on-demand table builds
 out = sys.stdout
 sys.stdout = sys.stderr
 out.write("ready\n"); out.flush()
@@ -104,6 +112,13 @@ class Worker:
         self.start()
 
 
+def _escape(escapes: list, item: tuple) -> None:
+    """Record an escape and show it at once (a long run reveals it early)."""
+    escapes.append(item)
+    reader, detail, text = item
+    print(f"  escape [{reader}] {detail}: {text[:200]!r}", flush=True)
+
+
 def collect_inputs(reader: str, n: int, seed: int) -> list:
     from hypothesis import HealthCheck, Phase, given, settings
     from hypothesis import seed as fixed_seed
@@ -133,6 +148,7 @@ def main() -> None:
     ap.add_argument("--memory", type=int, default=1024, help="MB")
     ap.add_argument("--seed", type=int, default=0)
     ap.add_argument("--readers", default="integrand,constraints,expression,csv")
+    ap.add_argument("--table-weight", type=int, default=14, help="MZV tables the workers may use")
     ap.add_argument("--cache", default=os.environ.get("LOWENERGY_CACHE_DIR", str(ROOT / ".fuzz-cache")))
     args = ap.parse_args()
 
@@ -140,9 +156,10 @@ def main() -> None:
     os.environ["LOWENERGY_CACHE_DIR"] = args.cache
     from lowenergy.zeta.table import build_tables, default_store
 
-    if default_store().built_weight() < 12:
-        print("building MZV tables to weight 12 ...", flush=True)
-        build_tables(12)
+    if default_store().built_weight() < args.table_weight:
+        print(f"building MZV tables to weight {args.table_weight} ...", flush=True)
+        build_tables(args.table_weight)
+    print(f"workers use MZV tables to weight {default_store().built_weight()} (no on-demand builds)", flush=True)
 
     readers = args.readers.split(",")
     rows = {}
@@ -175,7 +192,7 @@ def main() -> None:
                 w.job = None
                 if not line:  # the worker died
                     counts["other exception"] += 1
-                    escapes.append((reader, "crash (worker died)", job["text"]))
+                    _escape(escapes, (reader, "crash (worker died)", job["text"]))
                     w.start()
                     continue
                 reply = json.loads(line)
@@ -184,14 +201,14 @@ def main() -> None:
                 if kind != "memory" and reply["rss"] > args.memory << 20:
                     kind = "memory"
                 if kind == "memory":
-                    escapes.append((reader, f"memory: peak {reply['rss'] >> 20} MB", job["text"]))
+                    _escape(escapes, (reader, f"memory: peak {reply['rss'] >> 20} MB", job["text"]))
                     w.kill()
                 elif reply["cpu"] > args.timeout:
                     kind = "timeout"
-                    escapes.append((reader, f"timeout: {reply['cpu']:.1f} s CPU", job["text"]))
+                    _escape(escapes, (reader, f"timeout: {reply['cpu']:.1f} s CPU", job["text"]))
                 counts[kind] += 1
                 if kind == "other exception":
-                    escapes.append((reader, reply["detail"], job["text"]))
+                    _escape(escapes, (reader, reply["detail"], job["text"]))
                 slowest.append((reply["cpu"], reader, job["text"]))
                 done += 1
                 if done % 250 == 0:
@@ -200,7 +217,7 @@ def main() -> None:
                 if now - w.sent > args.wall_factor * args.timeout:
                     busy.pop(fd)
                     counts["timeout"] += 1
-                    escapes.append((reader, f"timeout: killed after {args.wall_factor * args.timeout} s wall", w.job["text"]))
+                    _escape(escapes, (reader, f"timeout: killed after {args.wall_factor * args.timeout} s wall", w.job["text"]))
                     w.job = None
                     w.kill()
         for w in workers:

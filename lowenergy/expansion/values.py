@@ -182,9 +182,6 @@ class ModularWordValues:
         The disk cache holds int32 arrays (entries are below 2^26); it is a
         pure cache: deleting it only costs the time to rebuild.
         """
-        import os
-        import tempfile
-
         import numpy as np
 
         if p in self._data:
@@ -213,35 +210,32 @@ class ModularWordValues:
         classes are collected in memory instead.
         """
         import os
-        import tempfile
 
         import numpy as np
         from numpy.lib.format import open_memmap
+
+        from ..fileio import atomic_path
 
         data = self._factory(p, self.store)
         shape = (1 << self.weight, len(self.basis))
         try:
             folder.mkdir(parents=True, exist_ok=True)
-            fd, tmp = tempfile.mkstemp(dir=folder, suffix=".npy")
-            os.close(fd)
+            writable = os.access(folder, os.W_OK)
         except OSError:
+            writable = False
+        if not writable:
             rows = np.zeros(shape, dtype=np.int32)  # a read-only cache only costs time
             for ones in range(self.weight + 1):
                 idx, vals = data.word_values_of_class(self.weight, ones)
                 rows[idx] = vals
             return rows
-        try:
+        with atomic_path(path, durable=False) as tmp:
             out = open_memmap(tmp, mode="w+", dtype=np.int32, shape=shape)
             for ones in range(self.weight + 1):
                 idx, vals = data.word_values_of_class(self.weight, ones)
                 out[idx] = vals
             out.flush()
             del out
-            os.replace(tmp, path)
-        except BaseException:
-            if os.path.exists(tmp):
-                os.unlink(tmp)
-            raise
         return np.load(path, mmap_mode="r", allow_pickle=False)
 
     def combine(self, coeffs: Dict[int, int]) -> MZV:

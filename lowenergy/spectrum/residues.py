@@ -61,8 +61,6 @@ import csv
 import io
 import json
 import math
-import os
-import tempfile
 from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import lru_cache
@@ -72,6 +70,7 @@ from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
 import flint
 
 from ..errors import InputError
+from ..fileio import write_atomic
 from ..integrand.model import Integrand, Poly, Term
 from ..integrand.transform import g_of_one_minus_x
 from ..zeta.element import MZV
@@ -514,18 +513,7 @@ def write_rows(rows: List[Dict[str, object]], path, fmt: Optional[str] = None,
         text = "\n".join(lines) + "\n"
     else:
         raise InputError(f"unknown table format {fmt!r}", hint="use csv, json or latex (.csv, .json, .tex)")
-    directory = path.parent if str(path.parent) else Path(".")
-    fd, tmp = tempfile.mkstemp(dir=directory, prefix=".tmp-", suffix=path.suffix)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8") as handle:
-            handle.write(text)
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
+    write_atomic(path, text)
     return path
 
 

@@ -118,8 +118,6 @@ True
 from __future__ import annotations
 
 import json
-import os
-import tempfile
 import time
 from fractions import Fraction
 from typing import Dict, Iterable, Mapping, Tuple
@@ -127,6 +125,7 @@ from typing import Dict, Iterable, Mapping, Tuple
 import flint
 
 from ..errors import InputError, InternalError
+from ..fileio import write_atomic
 from ..words import all_words, regularize_word, shuffle, word_to_indices
 from ..zeta.element import MZV
 from ..zeta.table import TableStore, default_store
@@ -577,10 +576,7 @@ def _save_json(table: SVTable, store: TableStore) -> None:
         },
     }
     try:
-        fd, tmp = tempfile.mkstemp(dir=store.directory, suffix=".tmp")
-        with os.fdopen(fd, "w") as fh:
-            json.dump(data, fh, separators=(",", ":"))
-        os.replace(tmp, _json_path(store, table.max_weight))
+        write_atomic(_json_path(store, table.max_weight), json.dumps(data, separators=(",", ":")))
     except OSError:
         pass  # the cache is optional
 

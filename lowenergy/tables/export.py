@@ -50,7 +50,6 @@ import io
 import json
 import os
 import re
-import tempfile
 from dataclasses import dataclass
 from decimal import Decimal, DecimalException, InvalidOperation
 from fractions import Fraction
@@ -60,6 +59,7 @@ from typing import Dict, List, Optional, Sequence, Tuple, Union
 import mpmath
 
 from ..errors import InputError, LowEnergyError, ParseError
+from ..fileio import write_atomic
 from ..limits import MAX_CSV_BYTES, MAX_CSV_ROWS, MAX_DECIMAL_EXPONENT, MAX_NUMERIC_DIGITS, MAX_NUMERIC_WORK
 from ..parse import Mul, Num, Pow, Sym, parse_expression
 from ..expansion.result import u_pole_name
@@ -317,48 +317,19 @@ def to_dataframe(expansion, basis: BasisSpec = "monomial", digits: int = 20):
 # --------------------------------------------------------------------------
 
 
-def _umask() -> int:
-    try:
-        with open("/proc/self/status", encoding="ascii") as fh:
-            for line in fh:
-                if line.startswith("Umask:"):
-                    return int(line.split()[1], 8)
-    except (OSError, ValueError, IndexError):
-        pass
-    old = os.umask(0o022)  # pragma: no cover - only without /proc
-    os.umask(old)  # pragma: no cover
-    return old  # pragma: no cover
-
-
 def _atomic_write(path: PathLike, text: str) -> Path:
-    """Write ``text`` to ``path`` atomically (temporary file + ``os.replace``)."""
+    """Write ``text`` to ``path`` atomically (:func:`lowenergy.fileio.write_atomic`);
+    an operating-system failure is the user's: ``InputError`` naming the file."""
     return _atomic_write_bytes(path, text.encode("utf-8"))
 
 
 def _atomic_write_bytes(path: PathLike, data: bytes) -> Path:
-    """Write ``data`` to ``path`` atomically (temporary file + ``os.replace``)."""
+    """Write ``data`` to ``path`` atomically; ``InputError`` on failure."""
     target = Path(os.fspath(path))
-    directory = target.parent if str(target.parent) else Path(".")
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
+        return write_atomic(target, data)
     except OSError as err:
-        raise InputError(f"cannot write {target}: {err.strerror}", source=str(target)) from None
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp, 0o666 & ~_umask())
-        os.replace(tmp, target)
-    except BaseException as err:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        if isinstance(err, OSError):
-            raise InputError(f"cannot write {target}: {err.strerror}", source=str(target)) from None
-        raise
-    return target
+        raise InputError(f"cannot write {target}: {err.strerror or err}", source=str(target)) from None
 
 
 # --------------------------------------------------------------------------

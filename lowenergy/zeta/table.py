@@ -57,6 +57,7 @@ from pathlib import Path
 from typing import Callable, Dict, Iterator, List, Optional, Tuple
 
 from ..errors import InternalError, TableError
+from ..fileio import write_atomic
 from ..words import Indices
 from .reduction import Monomial, WeightTable, reduce_weight
 
@@ -421,15 +422,9 @@ class TableStore:
             "stats": table.stats,
         }
         self.directory.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(dir=self.directory, suffix=".tmp")
-        with os.fdopen(fd, "w") as fh:
-            json.dump(data, fh, separators=(",", ":"))
-        os.replace(tmp, self.path(w))
+        write_atomic(self.path(w), json.dumps(data, separators=(",", ":")))
         meta = {k: v for k, v in data.items() if k not in ("basis", "reductions")}
-        fd, tmp = tempfile.mkstemp(dir=self.directory, suffix=".tmp")
-        with os.fdopen(fd, "w") as fh:
-            json.dump(meta, fh, separators=(",", ":"))
-        os.replace(tmp, self.meta_path(w))
+        write_atomic(self.meta_path(w), json.dumps(meta, separators=(",", ":")))
 
     def forget(self) -> None:
         """Drop everything held in memory (files stay)."""
