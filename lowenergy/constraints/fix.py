@@ -101,8 +101,8 @@ from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from ..zeta.format import fraction_text
 from .check import CheckReport, CoefficientValues, DEFAULT_DIGITS, check, check_order, exact_sides
-from .linalg import Echelon, IncrementalBasis, greedy_independent_image
-from .linalg import consistent as linalg_consistent
+from ..linalg import Echelon, IncrementalBasis, greedy_independent_image
+from ..linalg import consistent as linalg_consistent
 from .model import Constraint, ConstraintSet, pole_levels_needed
 from .rewrite import rewrite_toml
 from .poles import Condition, crossing_contact_conditions, crossing_pole_conditions, pole_conditions
@@ -113,34 +113,6 @@ UNIQUE, UNDERDETERMINED, INCONSISTENT = "unique", "underdetermined", "inconsiste
 
 Affine = Tuple[Fraction, Dict[str, Fraction]]
 Row = List[Fraction]
-
-
-# ==========================================================================
-# exact linear algebra over Q
-# ==========================================================================
-
-
-def _rref(rows: Sequence[Row], ncols: int) -> Tuple[List[Row], List[int]]:
-    """Reduced row echelon form (non-zero rows) and pivot columns."""
-    m = [list(r) for r in rows]
-    pivots: List[int] = []
-    r = 0
-    for col in range(ncols):
-        if r == len(m):
-            break
-        pivot = next((i for i in range(r, len(m)) if m[i][col] != 0), None)
-        if pivot is None:
-            continue
-        m[r], m[pivot] = m[pivot], m[r]
-        inv = 1 / m[r][col]
-        m[r] = [x * inv for x in m[r]]
-        for i in range(len(m)):
-            if i != r and m[i][col] != 0:
-                f = m[i][col]
-                m[i] = [a - f * b for a, b in zip(m[i], m[r])]
-        pivots.append(col)
-        r += 1
-    return m[:r], pivots
 
 
 SMALLEST_CONFLICT_BUDGET = 20000

@@ -243,7 +243,7 @@ class ModularWordValues:
 
         from ..errors import InternalError
         from ..zeta.motivic import SMALL_PRIMES
-        from ..zeta.reduction import _rational_reconstruct
+        from ..linalg import crt_rational
 
         if not coeffs:
             return MZV()
@@ -260,21 +260,14 @@ class ModularWordValues:
             residues.append((p, [int(v) for v in acc]))
             if count < 2:
                 continue
+            primes = [q for q, _ in residues]
             modulus = 1
-            for q, _ in residues:
+            for q in primes:
                 modulus *= q
             coords = []
             ok = True
             for k in range(len(self.basis)):
-                r, mod = 0, 1
-                for q, vec in residues:
-                    t = ((vec[k] - r) * pow(mod, -1, q)) % q
-                    r += mod * t
-                    mod *= q
-                if r == 0:
-                    coords.append(Fraction(0))
-                    continue
-                frac = _rational_reconstruct(r, modulus)
+                frac = crt_rational([vec[k] for _, vec in residues], primes, modulus)
                 if frac is None:
                     ok = False
                     break

@@ -48,7 +48,8 @@ from typing import Dict, Iterable, List, Optional, Tuple
 import numpy as np
 
 from ..zeta.element import MZV, _mono_mul
-from ..zeta.reduction import Monomial, _rational_reconstruct, monomials_of_weight
+from ..linalg import rational_reconstruct
+from ..zeta.reduction import Monomial, monomials_of_weight
 from ..zeta.table import TableStore
 
 __all__ = ["ColumnSpace", "shuffle_values", "embedding_counts", "VSeries", "fraction", "poly_from"]
@@ -266,7 +267,7 @@ class _Reconstruction:
                 if -bound <= n <= bound:
                     coords.append(Fraction(n, den))
                     continue
-            q = _rational_reconstruct(r, modulus)
+            q = rational_reconstruct(r, modulus)
             if q is None:
                 return
             coords.append(q)

@@ -78,6 +78,7 @@ from fractions import Fraction
 from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Union
 
 from ..errors import InputError, InternalError
+from ..linalg import DependentColumn, solve_gram
 from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression, to_text
 from ..zeta.element import MZV
 from ..integrand.model import poly_add
@@ -557,42 +558,6 @@ def _components(polys: Sequence[Poly2]) -> List[List[int]]:
     return [groups[k] for k in sorted(groups)]
 
 
-class _Dependent(Exception):
-    def __init__(self, index: int, combination: Dict[int, Fraction]) -> None:
-        super().__init__(index)
-        self.index = index
-        self.combination = combination
-
-
-def _gram_solve(gram: List[List[Fraction]], rhs: List[_Flat]) -> List[_Flat]:
-    """Solve ``gram x = rhs`` for a positive semi-definite Gram matrix.
-
-    Raises :class:`_Dependent` with the first index whose column lies in the
-    span of the earlier ones (zero pivot of the exact elimination).
-    """
-    n = len(gram)
-    g = [row[:] for row in gram]
-    r = [dict(v) for v in rhs]
-    for k in range(n):
-        pivot = g[k][k]
-        if pivot == 0:
-            raise _Dependent(k, {})
-        for i in range(k + 1, n):
-            f = g[i][k] / pivot
-            if f:
-                for j in range(k, n):
-                    g[i][j] -= f * g[k][j]
-                r[i] = _vadd(r[i], r[k], -f)
-    x: List[_Flat] = [{} for _ in range(n)]
-    for k in range(n - 1, -1, -1):
-        acc = dict(r[k])
-        for j in range(k + 1, n):
-            if g[k][j]:
-                acc = _vadd(acc, x[j], -g[k][j])
-        x[k] = _vscale(acc, 1 / g[k][k])
-    return x
-
-
 def _dot(a: Poly2, b: Poly2) -> Fraction:
     if len(a) > len(b):
         a, b = b, a
@@ -604,7 +569,7 @@ def _project(
 ) -> Tuple[List[_Flat], Dict[Tuple[int, int], _Flat]]:
     """Least-squares coefficients of ``target`` on ``polys`` and the residual.
 
-    ``polys`` must be linearly independent (else :class:`_Dependent`).
+    ``polys`` must be linearly independent (else :class:`~lowenergy.linalg.DependentColumn`).
     """
     coeffs: List[_Flat] = [{} for _ in polys]
     residual = {m: dict(v) for m, v in target.items() if v}
@@ -619,12 +584,9 @@ def _project(
                     acc = _vadd(acc, residual[m], q)
             rhs.append(acc)
         try:
-            x = _gram_solve(gram, rhs)
-        except _Dependent as dep:
-            k = dep.index
-            sub = [row[:k] for row in gram[:k]]
-            comb = _gram_solve(sub, [{((), ()): gram[i][k]} for i in range(k)]) if k else []
-            raise _Dependent(group[k], {group[i]: c.get(((), ()), Fraction(0)) for i, c in enumerate(comb)})
+            x = solve_gram(gram, rhs)
+        except DependentColumn as dep:
+            raise DependentColumn(group[dep.index], {group[i]: c for i, c in dep.combination.items()}) from None
         for idx, p, xv in zip(group, members, x):
             coeffs[idx] = xv
             if not xv:
@@ -945,7 +907,7 @@ def decompose_user(
     target = {m: _flatten(pp) for m, pp in contact.items()}
     try:
         coeffs_flat, residual = _project(truncated, target)
-    except _Dependent as dep:
+    except DependentColumn as dep:
         bad = basis.names[kept[dep.index]]
         comb = {basis.names[kept[i]]: c for i, c in dep.combination.items()}
         combo = _combination_text(comb)

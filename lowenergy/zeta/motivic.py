@@ -32,7 +32,6 @@ from __future__ import annotations
 
 import time
 from fractions import Fraction
-from math import gcd
 from typing import Callable, Dict, List, Sequence, Tuple
 
 import numpy as np
@@ -40,7 +39,8 @@ import numpy as np
 from ..errors import InternalError
 from ..words import Indices, admissible_indices, indices_to_word, word_to_indices
 from .falphabet import FKey, monomial_falphabet
-from .reduction import Monomial, WeightTable, _rational_reconstruct, generator_preference, monomials_of_weight
+from ..linalg import crt_rational, to_mod
+from .reduction import Monomial, WeightTable, generator_preference, monomials_of_weight
 
 __all__ = ["reduce_weight_motivic", "f_monomials", "SMALL_PRIMES"]
 
@@ -66,10 +66,6 @@ def f_monomials(weight: int) -> List[FKey]:
         for w in words(weight - 2 * k):
             out.append((k, w))
     return out
-
-
-def _mod(q: Fraction, p: int) -> int:
-    return (q.numerator % p) * pow(q.denominator % p, -1, p) % p
 
 
 class _PrimeData:
@@ -246,7 +242,7 @@ class _PrimeData:
         phi = np.zeros((len(basis), len(fidx)), dtype=np.int64)
         for a, mono in enumerate(basis):
             for key, c in monomial_falphabet(mono, self.store).items():
-                phi[a, fidx[key]] = _mod(c, p)
+                phi[a, fidx[key]] = to_mod(c, p)
         vals = self.word_values(k)
         res = np.zeros((vals.shape[0], len(fidx)), dtype=np.int64)
         # chunked products keep every partial sum below 2^63
@@ -348,7 +344,7 @@ def reduce_weight_motivic(
         for a, mono in enumerate(prod_nontop):
             for key, c in monomial_falphabet(mono, store).items():
                 if key != top_key:
-                    prod_rows[a, nontop.index(key)] = _mod(c, p)
+                    prod_rows[a, nontop.index(key)] = to_mod(c, p)
         # ... and new generators, greedily by preference (same prime-independent choice)
         if gen_rows is None:
             mat = [list(map(int, row)) for row in prod_rows]
@@ -459,24 +455,20 @@ def reduce_weight_motivic(
 
 def _reconstruct_all(per_prime):
     """CRT + rational reconstruction of all coordinates; None if unstable."""
+    primes = [p for p, _, _ in per_prime]
     modulus = 1
-    for p, _, _ in per_prime:
+    for p in primes:
         modulus *= p
-    n_words, n_basis = per_prime[0][1].shape
+    mats = [mat for _, mat, _ in per_prime]
+    n_words, n_basis = mats[0].shape
     coords: List[Dict[int, Fraction]] = []
     for wi in range(n_words):
         row: Dict[int, Fraction] = {}
         for a in range(n_basis):
-            residue, m = 0, 1
-            for p, mat, _ in per_prime:
-                v = int(mat[wi, a])
-                t = ((v - residue) * pow(m, -1, p)) % p
-                residue += m * t
-                m *= p
-            if residue:
-                q = _rational_reconstruct(residue, modulus)
-                if q is None:
-                    return None
+            q = crt_rational([mat[wi, a] for mat in mats], primes, modulus)
+            if q is None:
+                return None
+            if q:
                 row[a] = q
         coords.append(row)
     return coords, None
@@ -488,6 +480,6 @@ def _agrees(rec, check) -> bool:
     for wi, row in enumerate(coords):
         for a in range(mat.shape[1]):
             q = row.get(a, Fraction(0))
-            if int(mat[wi, a]) != _mod(q, p):
+            if int(mat[wi, a]) != to_mod(q, p):
                 return False
     return True

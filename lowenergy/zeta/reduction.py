@@ -38,10 +38,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from fractions import Fraction
-from math import gcd, isqrt
 from typing import Callable, Dict, List, Sequence, Tuple
 
 from ..errors import InternalError
+from ..linalg import crt_rational, to_mod
 from ..words import (
     Indices,
     admissible_indices,
@@ -204,23 +204,6 @@ def _relations(weight: int) -> List[Dict[Indices, int]]:
         if row:
             rows.append(row)
     return rows
-
-
-def _rational_reconstruct(a: int, m: int) -> Fraction | None:
-    """Smallest fraction n/d with n ≡ a d (mod m), |n|, d ≤ sqrt(m/2)."""
-    a %= m
-    bound = isqrt(m // 2)
-    r0, r1 = m, a
-    s0, s1 = 0, 1
-    while r1 > bound:
-        q = r0 // r1
-        r0, r1 = r1, r0 - q * r1
-        s0, s1 = s1, s0 - q * s1
-    if s1 == 0 or abs(s1) > bound:
-        return None
-    if gcd(r1, abs(s1)) != 1:
-        return None
-    return Fraction(r1, s1)
 
 
 def reduce_weight(
@@ -389,8 +372,9 @@ def reduce_weight(
 
 def _reconstruct(results, pivots, free, rank):
     """CRT + rational reconstruction of the RREF entries at free columns."""
+    primes = [prime for prime, _ in results]
     modulus = 1
-    for prime, _ in results:
+    for prime in primes:
         modulus *= prime
     out = []
     for i in range(rank):
@@ -398,20 +382,11 @@ def _reconstruct(results, pivots, free, rank):
         for j in free:
             if j < pivots[i]:
                 continue
-            residue = 0
-            m = 1
-            for prime, red in results:
-                v = int(red[i, j])
-                # CRT step
-                t = ((v - residue) * pow(m, -1, prime)) % prime
-                residue += m * t
-                m *= prime
-            if residue == 0:
-                continue
-            q = _rational_reconstruct(residue, modulus)
+            q = crt_rational([red[i, j] for _, red in results], primes, modulus)
             if q is None:
                 return None
-            row[j] = q
+            if q:
+                row[j] = q
         out.append(row)
     return out
 
@@ -422,8 +397,6 @@ def _verify(recon, red, prime, pivots, free) -> bool:
         for j in free:
             if j < pivots[i]:
                 continue
-            q = row.get(j, Fraction(0))
-            expect = (q.numerator * pow(q.denominator, -1, prime)) % prime
-            if int(red[i, j]) != expect:
+            if int(red[i, j]) != to_mod(row.get(j, Fraction(0)), prime):
                 return False
     return True

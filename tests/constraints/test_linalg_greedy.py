@@ -5,7 +5,7 @@ from __future__ import annotations
 import random
 from fractions import Fraction
 
-from lowenergy.constraints.linalg import IncrementalBasis, _greedy_exact, greedy_independent
+from lowenergy.linalg import IncrementalBasis, _greedy_exact, greedy_independent
 
 
 def _by_hand(rows):

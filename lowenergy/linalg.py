@@ -1,4 +1,17 @@
-"""Exact linear algebra over Q for :mod:`lowenergy.constraints.fix`, on python-flint.
+"""Exact linear algebra: the one front over python-flint for the whole package.
+
+* Modular arithmetic and reconstruction: :func:`to_mod`,
+  :func:`rational_reconstruct` and :func:`crt_rational` (Chinese remaindering
+  of residues modulo several primes, then the smallest fraction with that
+  residue) -- used by the MZV table builds (:mod:`lowenergy.zeta.reduction`,
+  :mod:`lowenergy.zeta.motivic`), which eliminate modulo primes with
+  ``flint.nmod_mat``.
+* :func:`solve_gram`: exact solution of a Gram system over Q with the first
+  dependent column found (``flint.fmpq_mat``) -- the projections of
+  :mod:`lowenergy.tables.bases`.
+* Sparse rows over Q for :mod:`lowenergy.constraints.fix`: :class:`Echelon`,
+  :func:`consistent`, :func:`greedy_independent`,
+  :func:`greedy_independent_image`, :class:`IncrementalBasis`.
 
 Rows are sparse: ``{column: rational}`` (``Fraction``, ``int`` or
 ``flint.fmpq``), the last column ``ncols − 1`` holding the right-hand side of
@@ -24,13 +37,151 @@ False
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Dict, Iterable, List, Sequence, Tuple
+from math import gcd, isqrt
+from typing import Dict, Hashable, Iterable, List, Optional, Sequence, Tuple
 
 import flint
 
-__all__ = ["Echelon", "IncrementalBasis", "consistent", "greedy_independent", "greedy_independent_image", "SparseRow"]
+__all__ = [
+    "Echelon",
+    "IncrementalBasis",
+    "consistent",
+    "greedy_independent",
+    "greedy_independent_image",
+    "SparseRow",
+    "to_mod",
+    "rational_reconstruct",
+    "crt_rational",
+    "solve_gram",
+    "DependentColumn",
+]
 
 SparseRow = Dict[int, object]
+
+
+# ==========================================================================
+# modular arithmetic and rational reconstruction
+# ==========================================================================
+
+
+def to_mod(q: Fraction, p: int) -> int:
+    """``q`` modulo the prime ``p`` (its denominator must be prime to ``p``).
+
+    >>> to_mod(Fraction(1, 2), 7), to_mod(Fraction(-3), 7)
+    (4, 4)
+    """
+    return (q.numerator * pow(q.denominator, -1, p)) % p
+
+
+def rational_reconstruct(a: int, m: int) -> Optional[Fraction]:
+    """Smallest fraction n/d with n ≡ a d (mod m), |n|, d ≤ sqrt(m/2); None
+    if there is none (the extended Euclidean algorithm stopped half-way; see
+    e.g. von zur Gathen & Gerhard, *Modern Computer Algebra*, section 5.10).
+
+    >>> rational_reconstruct(4, 7), rational_reconstruct(to_mod(Fraction(-5, 13), 10**9 + 7), 10**9 + 7)
+    (None, Fraction(-5, 13))
+    """
+    a %= m
+    bound = isqrt(m // 2)
+    r0, r1 = m, a
+    s0, s1 = 0, 1
+    while r1 > bound:
+        q = r0 // r1
+        r0, r1 = r1, r0 - q * r1
+        s0, s1 = s1, s0 - q * s1
+    if s1 == 0 or abs(s1) > bound:
+        return None
+    if gcd(r1, abs(s1)) != 1:
+        return None
+    return Fraction(r1, s1)
+
+
+def crt_rational(residues: Sequence[int], primes: Sequence[int], modulus: Optional[int] = None) -> Optional[Fraction]:
+    """The rational number with the given residues modulo distinct primes:
+    Chinese remaindering (Garner's mixed-radix form) then
+    :func:`rational_reconstruct` modulo the product (``modulus``, if the
+    caller has it).  Zero residues give 0; None if reconstruction fails.
+
+    >>> ps = [2**61 - 1, 2**31 - 1]
+    >>> crt_rational([to_mod(Fraction(123456789, 1000003), p) for p in ps], ps)
+    Fraction(123456789, 1000003)
+    """
+    residue, m = 0, 1
+    for v, p in zip(residues, primes):
+        t = ((int(v) - residue) * pow(m, -1, p)) % p
+        residue += m * t
+        m *= p
+    if residue == 0:
+        return Fraction(0)
+    return rational_reconstruct(residue, modulus if modulus is not None else m)
+
+
+# ==========================================================================
+# Gram systems over Q
+# ==========================================================================
+
+
+class DependentColumn(Exception):
+    """Raised by :func:`solve_gram`: column ``index`` lies in the span of the
+    columns before it, with ``combination[i]`` the coefficient of column i."""
+
+    def __init__(self, index: int, combination: Dict[int, Fraction]) -> None:
+        super().__init__(index)
+        self.index = index
+        self.combination = combination
+
+
+def solve_gram(
+    gram: Sequence[Sequence[Fraction]], rhs: Sequence[Dict[Hashable, Fraction]]
+) -> List[Dict[Hashable, Fraction]]:
+    """Solve ``gram · x = rhs`` exactly, the right-hand sides being sparse
+    vectors ``{key: rational}`` (one per row) and so the solutions too.
+
+    ``gram`` is the Gram matrix of some vectors (symmetric, positive
+    semi-definite).  If those vectors are dependent, :class:`DependentColumn`
+    names the first one that lies in the span of those before it, with the
+    combination (the same column Gaussian elimination without pivoting stops
+    at, since a Gram matrix's leading blocks are singular exactly then).
+
+    >>> solve_gram([[2, 1], [1, 1]], [{"a": 3}, {"a": 2, "b": 1}])
+    [{'a': Fraction(1, 1), 'b': Fraction(-1, 1)}, {'a': Fraction(1, 1), 'b': Fraction(2, 1)}]
+    >>> try:
+    ...     solve_gram([[1, 2], [2, 4]], [{}, {}])
+    ... except DependentColumn as dep:
+    ...     print(dep.index, dep.combination)
+    1 {0: Fraction(2, 1)}
+    """
+    n = len(gram)
+    if n == 0:
+        return []
+    g = flint.fmpq_mat(n, n, [_fmpq(Fraction(x)) for row in gram for x in row])
+    reduced, rank = g.rref()
+    if rank < n:
+        pivots = _pivot_columns(reduced, rank, n)
+        k = next(j for j in range(n) if j >= len(pivots) or pivots[j] != j)
+        # column k = Σ_{i<k} c_i column i: the entries of column k in the
+        # reduced form (the first k columns are pivots)
+        comb = {i: _fraction(reduced[i, k]) for i in range(k) if reduced[i, k] != 0}
+        raise DependentColumn(k, comb)
+    keys = list(dict.fromkeys(key for v in rhs for key in v))
+    if not keys:
+        return [{} for _ in range(n)]
+    pos = {key: j for j, key in enumerate(keys)}
+    zero = flint.fmpq(0)
+    flat = [zero] * (n * len(keys))
+    for i, v in enumerate(rhs):
+        for key, x in v.items():
+            flat[i * len(keys) + pos[key]] = _fmpq(Fraction(x))
+    sol = g.solve(flint.fmpq_mat(n, len(keys), flat))
+    out: List[Dict[Hashable, Fraction]] = []
+    for i in range(n):
+        out.append({key: _fraction(sol[i, j]) for j, key in enumerate(keys) if sol[i, j] != zero})
+    return out
+
+
+# ==========================================================================
+# sparse rows over Q (constraints)
+# ==========================================================================
 
 
 def _fmpq(x) -> "flint.fmpq":
