@@ -31,6 +31,7 @@ __all__ = [
     "MAX_INT_DIGITS",
     "MAX_EXPONENT",
     "MAX_WEIGHT",
+    "MAX_SINGLE_ZETA_WEIGHT",
     "MAX_WORD_LENGTH",
     "MAX_STUFFLE_WEIGHT",
     "MAX_REGULARIZATION_WORK",
@@ -46,6 +47,7 @@ __all__ = [
     "MAX_NUMERIC_WORK",
     "MAX_DECIMAL_EXPONENT",
     "check_weight",
+    "check_single_zeta",
     "check_rational",
 ]
 
@@ -69,6 +71,11 @@ MAX_EXPONENT = 64
 #: regularization).  It is the largest weight ``lowenergy tables build``
 #: accepts, so it does not move when more tables are built.
 MAX_WEIGHT = 18
+#: Largest n of a single zeta value ``zeta(n)``.  These need no table (odd n
+#: are generators, even n rational multiples of ``zeta(2)^(n/2)``), so they
+#: may go beyond :data:`MAX_WEIGHT`; their numerics cost grows with n (about
+#: 5 s at n = 200 on a laptop core).
+MAX_SINGLE_ZETA_WEIGHT = 100
 #: Largest weight of a divergent MZV that may be stuffle-regularized (the
 #: stuffle regularization costs about 2^weight combinations of index lists).
 MAX_STUFFLE_WEIGHT = 13
@@ -125,6 +132,20 @@ def check_weight(weight: int, what: str = "MZV") -> None:
             hint=f"lowenergy builds MZV tables up to weight {MAX_WEIGHT} only; "
             f"reachable weights are 0 to {MAX_WEIGHT}",
         )
+
+
+def check_single_zeta(n: int) -> None:
+    """Refuse ``zeta(n)`` with n above :data:`MAX_SINGLE_ZETA_WEIGHT`.
+
+    >>> check_single_zeta(99)
+    >>> check_single_zeta(10**20)
+    Traceback (most recent call last):
+        ...
+    lowenergy.errors.InputError: zeta(n) with n = 100000000000000000000 is beyond the package's limit of n <= 100
+    """
+    if n > MAX_SINGLE_ZETA_WEIGHT:
+        shown = str(n) if n < 10**30 else f"a {len(str(n))}-digit number"
+        raise InputError(f"zeta(n) with n = {shown} is beyond the package's limit of n <= {MAX_SINGLE_ZETA_WEIGHT}")
 
 
 def check_rational(q: Fraction, what: str = "number") -> Fraction:

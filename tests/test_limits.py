@@ -184,3 +184,31 @@ def test_numeric_check_work_budget(tmp_path):
     path.write_text(head + "\n".join(rows) + "\n", encoding="utf-8")
     with pytest.raises(InputError, match="too many digits in total"):
         read_csv(path)
+
+
+def test_single_zeta_values_have_a_stated_limit(tmp_path):
+    """zeta(n) needs no table (so n may pass MAX_WEIGHT) but n is bounded:
+    a 22-digit n once overflowed the word construction of the numerics of a
+    CSV 'numeric' check (found by the fuzz campaign)."""
+    import mpmath
+
+    n = limits.MAX_SINGLE_ZETA_WEIGHT
+    # zeta(100) and zeta(99) numerically against mpmath (an independent implementation)
+    with mpmath.workdps(40):
+        assert abs(zeta(n).numeric(30) - mpmath.zeta(n)) < mpmath.mpf(10) ** -28
+        assert abs(zeta(n - 1).numeric(30) - mpmath.zeta(n - 1)) < mpmath.mpf(10) ** -28
+    for bad in (n + 1, 10**22):
+        with pytest.raises(InputError, match="beyond the package's limit"):
+            zeta(bad)
+        with pytest.raises(InputError, match="beyond the package's limit"):
+            evaluate(f"37/20*zeta({bad})")
+    csv = tmp_path / "t.csv"
+    csv.write_text(
+        "# lowenergy coefficient table\n# format: 1\n# variables: s, t\n# parameters:\n# order: 1\n"
+        "# basis: monomial\n# in_basis: true\n"
+        "name,kind,i,j,label,order,param,weight,exact,numeric,note\n"
+        '"c[1,0]",contact,1,0,s,1,1,2,zeta(9999999999999999999999),1.0,\n'
+    )
+    with pytest.raises(InputError, match="beyond the package's limit") as err:
+        read_csv(csv)
+    assert err.value.line == 9

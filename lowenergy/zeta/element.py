@@ -30,7 +30,7 @@ from typing import Dict, Iterable, Iterator, Mapping, Tuple, Union
 import mpmath
 
 from ..errors import InputError, RegularizationError
-from ..limits import MAX_REGULARIZATION_WORK, MAX_STUFFLE_WEIGHT, check_weight
+from ..limits import MAX_REGULARIZATION_WORK, MAX_STUFFLE_WEIGHT, check_single_zeta, check_weight
 from ..words import (
     Indices,
     indices_to_word,
@@ -337,8 +337,10 @@ def zeta(*indices: int, regularize: str | None = None, store: TableStore | None 
     if not idx:
         return MZV.one()
     weight = sum(idx)
-    if len(idx) > 1:  # single zetas need no table at any weight
+    if len(idx) > 1:
         check_weight(weight)
+    else:  # single zetas need no table, but their numerics grow with n
+        check_single_zeta(weight)
     if not is_convergent_indices(idx):
         if regularize is None:
             raise RegularizationError(
