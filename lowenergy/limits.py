@@ -49,6 +49,7 @@ __all__ = [
     "check_weight",
     "check_single_zeta",
     "check_rational",
+    "int_text",
 ]
 
 #: Longest expression (one integrand, relation, table cell or command-line
@@ -134,6 +135,19 @@ def check_weight(weight: int, what: str = "MZV") -> None:
         )
 
 
+def int_text(n: int, limit: int = 30) -> str:
+    """``str(n)`` for an integer of at most ``limit`` digits, else a short
+    description (``str`` of a huge integer is slow and beyond Python's
+    4,300-digit limit it raises).
+
+    >>> int_text(-12), int_text(16**5000)
+    ('-12', 'an integer of more than 30 digits')
+    """
+    if abs(n) < 10**limit:
+        return str(n)
+    return f"an integer of more than {limit} digits"
+
+
 def check_single_zeta(n: int) -> None:
     """Refuse ``zeta(n)`` with n above :data:`MAX_SINGLE_ZETA_WEIGHT`.
 
@@ -144,8 +158,7 @@ def check_single_zeta(n: int) -> None:
     lowenergy.errors.InputError: zeta(n) with n = 100000000000000000000 is beyond the package's limit of n <= 100
     """
     if n > MAX_SINGLE_ZETA_WEIGHT:
-        shown = str(n) if n < 10**30 else f"a {len(str(n))}-digit number"
-        raise InputError(f"zeta(n) with n = {shown} is beyond the package's limit of n <= {MAX_SINGLE_ZETA_WEIGHT}")
+        raise InputError(f"zeta(n) with n = {int_text(n)} is beyond the package's limit of n <= {MAX_SINGLE_ZETA_WEIGHT}")
 
 
 def check_rational(q: Fraction, what: str = "number") -> Fraction:

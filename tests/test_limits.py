@@ -212,3 +212,20 @@ def test_single_zeta_values_have_a_stated_limit(tmp_path):
     with pytest.raises(InputError, match="beyond the package's limit") as err:
         read_csv(csv)
     assert err.value.line == 9
+
+
+@pytest.mark.parametrize(
+    "body",
+    [
+        '[[constraint]]\nname = "a"\nkind = "="\nrelation = "c[1,0]"\nrhs = HUGE\n',
+        '[[pole]]\nvariable = "s"\nlevels = [1]\nmax_order = HUGE\n',
+        '[[pole]]\nvariable = "s"\nmax_order = 1\nlevels = [HUGE]\n',
+    ],
+)
+def test_huge_toml_hex_integers_are_refused_with_a_message(body):
+    """A TOML hex literal is read without Python's 4,300-digit limit; printing
+    it in a message (or as a relation) once raised ValueError (fuzz campaign)."""
+    text = 'source = "test"\n' + body.replace("HUGE", "0x" + "f" * 5000)
+    with pytest.raises(InputError) as err:
+        constraints_from_text(text, source="huge.toml")
+    assert err.value.line is not None and "more than" in str(err.value)

@@ -79,6 +79,7 @@ import flint
 
 from .. import __version__
 from ..errors import InputError
+from ..limits import int_text
 from ..integrand.transform import g_of_one_minus_x
 from ..words import all_words
 from ..zeta.element import MZV
@@ -189,7 +190,7 @@ class AnsatzSpec:
 
         def integer(name: str, value, low: int, high: int) -> None:
             if isinstance(value, bool) or not isinstance(value, int) or not low <= value <= high:
-                raise InputError(f"--{name.replace('_', '-')} must be an integer from {low} to {high}, got {value!r}")
+                raise InputError(f"--{name.replace('_', '-')} must be an integer from {low} to {high}, got {int_text(value) if isinstance(value, int) else repr(value)}")
 
         if self.domain not in DOMAINS:
             raise InputError(f"unknown --domain {self.domain!r}", hint="known: " + ", ".join(DOMAINS))

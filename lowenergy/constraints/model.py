@@ -182,6 +182,7 @@ from fractions import Fraction
 from typing import Dict, Iterator, List, Optional, Sequence, Tuple
 
 from ..errors import InputError, LowEnergyError, ParseError
+from ..limits import MAX_INT_DIGITS, int_text
 from ..parse import Call, Div, Node, Num, Pow, Sym, parse_expression, to_text
 from .. import tomlpos
 from ..zeta.expression import zeta_indices
@@ -1110,12 +1111,15 @@ class _Reader:
                 raise self.error(InputError, f"'rhs' must be a string or an integer, not {tomlpos.toml_type(value)}{label}",
                                  rhs_line, "rhs", hint=hint)
             if isinstance(value, int):
+                # compare before converting: str() of a huge int (a TOML hex
+                # literal is read without Python's digit limit) would raise
+                if abs(value) >= 10**MAX_INT_DIGITS:
+                    raise self.error(InputError, f"'rhs' is too large (more than {MAX_INT_DIGITS} digits){label}",
+                                     rhs_line, "rhs")
                 rhs_text = str(value)
             else:
                 rhs_text = value.replace("\r", " ").replace("\n", " ")
                 rhs_at = self.layout.string_positions(rhs_offset, value) if rhs_offset is not None else ()
-            if isinstance(value, int) and abs(value) > 10**1000:
-                raise self.error(InputError, f"'rhs' is too large{label}", rhs_line, "rhs")
             try:
                 rhs_tree, rhs_refs = _parse_with_refs(rhs_text)
                 _validate(rhs_tree, rhs_refs, allow_refs=False)
@@ -1199,7 +1203,7 @@ class _Reader:
             raise self.error(InputError, f"'{key}' is empty{label}", line, key, hint=f"write {key} = [1, 2, 3]")
         for v in value:
             if v < 0 or v > MAX_LEVEL:
-                raise self.error(InputError, f"level {v} in '{key}' is out of range{label}", line, key,
+                raise self.error(InputError, f"level {int_text(v)} in '{key}' is out of range{label}", line, key,
                                  hint=f"levels are integers 0..{MAX_LEVEL} (poles at s = n or t = n, n >= 0)")
         dup = sorted({v for v in value if value.count(v) > 1})
         if dup:
@@ -1209,7 +1213,12 @@ class _Reader:
 
     def _small_int(self, value, key: str, line: Optional[int], label: str, lo: int, hi: int) -> int:
         if isinstance(value, bool) or not isinstance(value, int) or not lo <= value <= hi:
-            shown = repr(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else tomlpos.toml_type(value)
+            if isinstance(value, int) and not isinstance(value, bool):
+                shown = int_text(value)  # repr() of a huge int may raise
+            elif isinstance(value, float):
+                shown = repr(value)
+            else:
+                shown = tomlpos.toml_type(value)
             raise self.error(InputError, f"'{key}' must be an integer from {lo} to {hi}, not {shown}{label}",
                              line, key, hint=f"write {key} = {max(lo, 1)}")
         return value
