@@ -240,6 +240,11 @@ def _check_output(path: Optional[str], option: str) -> None:
         raise InputError(f"cannot write {option} {path}: {reason}", hint=f"choose another path for {option}")
 
 
+#: Help of the two options that hand work to Dask (see lowenergy.cluster).
+WORKERS_HELP = "run on N local worker processes (Dask); default: serial in this process"
+SCHEDULER_HELP = "run on a running Dask cluster, e.g. tcp://host:8786 (see README)"
+
+
 def _check_digits(digits: int) -> None:
     from .errors import InputError
 
@@ -305,17 +310,36 @@ def tables_build(
         "auto", "--method", metavar="NAME", help="auto (double shuffle to 12, coaction above) | double-shuffle | motivic"
     ),
     rows: bool = typer.Option(True, "--rows/--no-rows", help="also cache the word values the expansion engine uses"),
+    workers: Optional[int] = typer.Option(None, "--workers", metavar="N", help=WORKERS_HELP),
+    scheduler: Optional[str] = typer.Option(None, "--scheduler", metavar="ADDRESS", help=SCHEDULER_HELP),
 ) -> None:
-    """Build the MZV reduction tables ahead of time (commands build missing ones on first use)."""
-    from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
+    """Build the MZV reduction tables ahead of time (commands build missing ones on first use).
 
+    With --workers or --scheduler the coaction weights (above 12, or all with
+    --method motivic) run as Dask tasks: one per prime for the coaction and
+    chunks of words for the numerical top coefficients; the tables are the
+    same.  Double-shuffle weights and the word values (--rows) are computed
+    in this process."""
+    from .cluster import cluster_client
     from .errors import InputError
-    from .zeta.table import MAX_WEIGHT, build_tables, default_store
+    from .zeta.table import MAX_WEIGHT, default_store
 
     if weight < 2 or weight > MAX_WEIGHT:
         raise InputError(f"--weight must be between 2 and {MAX_WEIGHT}, got {weight}")
+    if method not in ("auto", "double-shuffle", "motivic"):
+        raise InputError(f"unknown table method {method!r}", hint="use auto, double-shuffle or motivic")
     store = default_store()
     store.check_writable()
+    with cluster_client(workers, scheduler) as client:
+        _build_with_bar(store, weight, rebuild, method, rows, client)
+    typer.echo(f"tables up to weight {weight} in {store.directory}")
+
+
+def _build_with_bar(store, weight: int, rebuild: bool, method: str, rows: bool, client) -> None:
+    from rich.progress import BarColumn, Progress, TextColumn, TimeElapsedColumn
+
+    from .zeta.table import build_tables
+
     with Progress(
         TextColumn("[bold]MZV tables[/bold]"),
         BarColumn(),
@@ -333,14 +357,13 @@ def tables_build(
             else:
                 bar.update(task, description=message)
 
-        build_tables(weight, store, rebuild=rebuild, progress=progress, method=method)
+        build_tables(weight, store, rebuild=rebuild, progress=progress, method=method, client=client)
         if rows:
             from .expansion.values import EXACT_MAX_WEIGHT, prepare_rows
 
             if weight > EXACT_MAX_WEIGHT:
                 bar.update(task, completed=EXACT_MAX_WEIGHT, description="word values for the engine")
                 prepare_rows(weight, store, progress=lambda w: bar.update(task, completed=w))
-    typer.echo(f"tables up to weight {weight} in {store.directory}")
 
 
 @tables_app.command("info", epilog=_exit_codes())
@@ -443,7 +466,7 @@ def _stderr_console():
 @app.command(epilog=_exit_codes(), short_help="Expand an integrand into exact Wilson coefficients.")
 @user_errors
 def expand(
-    file: str = typer.Argument(..., metavar="FILE", help="integrand file (TOML)"),
+    files: list[str] = typer.Argument(..., metavar="FILE...", help="integrand file(s) (TOML); several need --out-dir"),
     order: int = typer.Option(..., "--order", metavar="N", help="keep every s^i t^j with i + j <= N"),
     csv: Optional[str] = typer.Option(None, "--csv", metavar="FILE", help="write the table as CSV (lossless)"),
     latex: Optional[str] = typer.Option(None, "--latex", metavar="FILE", help="write a LaTeX tabular"),
@@ -452,8 +475,17 @@ def expand(
     user_basis: Optional[list[str]] = typer.Option(None, "--user-basis", metavar="NAME=POLY", help="a basis element, a polynomial in s, t (repeat)"),
     digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="significant digits of the numeric column (the terminal table shows fewer when it must fit)"),
     pi: bool = typer.Option(False, "--pi", help="LaTeX/terminal: powers of ζ(2) as powers of π"),
+    out_dir: Optional[str] = typer.Option(
+        None, "--out-dir", metavar="DIR", help="batch: write DIR/NAME.csv for every FILE (NAME.toml); nothing on the terminal"
+    ),
+    workers: Optional[int] = typer.Option(None, "--workers", metavar="N", help=WORKERS_HELP),
+    scheduler: Optional[str] = typer.Option(None, "--scheduler", metavar="ADDRESS", help=SCHEDULER_HELP),
 ) -> None:
-    """Expand an integrand at low energy into exact Wilson coefficients."""
+    """Expand an integrand at low energy into exact Wilson coefficients.
+
+    Several files (a batch) need --out-dir: every file is read first, then
+    all are expanded (with --workers or --scheduler one Dask task per file),
+    and the CSV tables are written only when all have succeeded."""
     from .errors import InputError
     from .integrand.reader import read_integrand
     from .tables import to_csv_text, to_json_dict, to_latex, to_terminal, write_csv, write_latex
@@ -462,13 +494,25 @@ def expand(
     if order < 0:
         raise InputError(f"--order must be a non-negative integer, got {order}")
     spec = _basis_spec(basis, user_basis or [])
+    if out_dir is not None or len(files) > 1:
+        _expand_batch(files, order, out_dir, spec, digits, workers, scheduler,
+                      single_outputs={"--csv": csv, "--latex": latex, "--json": as_json, "--pi": pi})
+        return
+    file = files[0]
     if spec == "sv" and (csv or latex):
         raise InputError("--basis sv is shown on the terminal and in --json only",
                          hint="CSV and LaTeX keep the conventional MZV basis (lossless); drop --basis sv for them")
     _check_output(csv, "--csv")
     _check_output(latex, "--latex")
     integrand = read_integrand(file)
-    expansion = _expand_with_progress(integrand, order)
+    if workers is None and scheduler is None:
+        expansion = _expand_with_progress(integrand, order)
+    else:
+        from .batch import expand_many
+        from .cluster import cluster_client
+
+        with cluster_client(workers, scheduler) as client:
+            (expansion,) = expand_many([integrand], order, client=client)
     if spec == "sv":
         _print_sv_basis(expansion, digits, as_json)
         return
@@ -493,6 +537,56 @@ def expand(
         else:
             write_latex(expansion, path, basis=spec, digits=digits, pi=pi)
         typer.echo(f"wrote {path}", err=True)
+
+
+def _expand_batch(files, order, out_dir, spec, digits, workers, scheduler, single_outputs) -> None:
+    """``expand FILE... --out-dir DIR``: one CSV table per file, all or none."""
+    import os
+    from pathlib import Path
+
+    from .batch import expand_many
+    from .cluster import cluster_client
+    from .errors import InputError
+    from .integrand.reader import read_integrand
+    from .tables import to_csv_text
+    from .tables.export import _atomic_write
+
+    if out_dir is None:
+        raise InputError(f"{len(files)} files need --out-dir DIR (one CSV table per file)",
+                         hint="add e.g. --out-dir tables")
+    given = [name for name, value in single_outputs.items() if value]
+    if given:
+        raise InputError(f"{given[0]} writes the table of one file; a batch writes CSV files to --out-dir",
+                         hint=f"drop {given[0]}, or expand one file without --out-dir")
+    if spec == "sv":
+        raise InputError("--basis sv is shown on the terminal and in --json only",
+                         hint="a batch writes CSV in the conventional MZV basis (lossless); drop --basis sv")
+    directory = Path(out_dir)
+    if directory.exists() and not directory.is_dir():
+        raise InputError(f"cannot write to --out-dir {out_dir}: it is not a directory")
+    parent = directory if directory.exists() else directory.parent
+    if not parent.is_dir() or not os.access(parent, os.W_OK | os.X_OK):
+        raise InputError(f"cannot write to --out-dir {out_dir}: "
+                         + ("it is not writable" if parent == directory else f"the directory {parent} does not exist or is not writable"),
+                         hint="choose another --out-dir")
+    targets = {}
+    for file in files:
+        target = directory / (Path(file).stem + ".csv")
+        if target in targets.values():
+            raise InputError(f"two input files would both write {target}", source=file,
+                             hint="give the files different names")
+        targets[file] = target
+    if directory.is_dir():
+        for target in targets.values():
+            _check_output(str(target), "--out-dir")
+    integrands = [read_integrand(file) for file in files]  # every input is checked before any work
+    with cluster_client(workers, scheduler) as client:
+        expansions = expand_many(integrands, order, client=client)
+    texts = [to_csv_text(e, basis=spec, digits=digits) for e in expansions]  # all in memory first
+    directory.mkdir(exist_ok=True)
+    for file, text, expansion in zip(files, texts, expansions):
+        _atomic_write(targets[file], text)
+        typer.echo(f"wrote {targets[file]} ({len(expansion.coefficients)} coefficients)", err=True)
 
 
 def _print_sv_basis(expansion, digits: int, as_json: bool) -> None:

@@ -32,7 +32,8 @@ from __future__ import annotations
 
 import time
 from fractions import Fraction
-from typing import Callable, Dict, List, Sequence, Tuple
+from math import gcd
+from typing import Callable, Dict, Iterator, List, Sequence, Tuple
 
 import numpy as np
 
@@ -297,98 +298,61 @@ def _coaction_matrix(N: int, words: np.ndarray, data: _PrimeData, fbasis) -> np.
     return out
 
 
-def reduce_weight_motivic(
-    weight: int,
-    lower_generators: Sequence[Indices],
-    store,
-    *,
-    digits: int = 80,
-    progress: Callable[[str], None] | None = None,
-) -> WeightTable:
-    """Reduce all convergent MZVs of ``weight`` via the coaction (see module doc).
+def _prime_delta(p: int, N: int, store, word_ints: np.ndarray, nontop_cols: np.ndarray) -> np.ndarray:
+    """Non-top coaction coordinates of the given weight-N words modulo ``p``
+    (one task of a distributed build; ``store`` needs the weights ≤ N - 2)."""
+    fbasis = {k: {key: i for i, key in enumerate(f_monomials(k))} for k in range(0, N + 1)}
+    return _coaction_matrix(N, word_ints, _PrimeData(p, store), fbasis)[:, nontop_cols]
 
-    ``store`` must hold the tables (and f-alphabet images) of all lower weights.
+
+def _deltas(N: int, store, word_ints, nontop_cols, say, client) -> Iterator[Tuple[int, np.ndarray]]:
+    """``(p, delta)`` for the primes in order, computed when asked for
+    (serial) or three primes at a time ahead on the cluster."""
+    if client is None:
+        for i, p in enumerate(SMALL_PRIMES):
+            say(f"weight {N}: coaction modulo prime {i + 1}")
+            yield p, _prime_delta(p, N, store, word_ints, nontop_cols)
+        return
+    shared = client.scatter(store.snapshot(N - 2), broadcast=True)
+    pending = []
+
+    def submit(p):
+        pending.append(client.submit(_prime_delta, p, N, shared, word_ints, nontop_cols, pure=False))
+
+    try:
+        for p in SMALL_PRIMES[:3]:  # the fewest primes a weight ever needs
+            submit(p)
+        for i, p in enumerate(SMALL_PRIMES):
+            if i == len(pending):
+                submit(p)
+            say(f"weight {N}: coaction modulo prime {i + 1} (cluster)")
+            yield p, pending[i].result()
+    finally:
+        client.cancel(pending)
+
+
+def _top_coefficients(
+    index_lists: Sequence[Indices],
+    coords: Sequence[Dict[int, Fraction]],
+    basis_monos: Sequence[Monomial],
+    top_mono: Monomial,
+    digits: int,
+    small_bits: int,
+) -> Dict[Indices, Dict[Monomial, Fraction]]:
+    """Reductions of the given words: the exact coordinates ``coords`` plus the
+    rational multiple of the top element fixed numerically (see module doc).
+
+    Depends only on its arguments, so the words of a weight can be split into
+    chunks (tasks) with identical results: the numerical values use the
+    common precision set by ``small_bits`` (see :func:`zeta_numeric_many`).
     """
-    import flint
     import mpmath
 
     from .numeric import zeta_numeric, zeta_numeric_many
 
-    say = progress or (lambda _m: None)
-    N = weight
-    t0 = time.perf_counter()
-    fbasis = {k: {key: i for i, key in enumerate(f_monomials(k))} for k in range(0, N + 1)}
-    top_key = (0, (N,)) if N % 2 else (N // 2, ())
-    nontop = [key for key in fbasis[N] if key != top_key]
-    nontop_cols = np.array([fbasis[N][key] for key in nontop], dtype=np.int64)
-
-    index_lists = admissible_indices(N)
-    word_ints = np.array(
-        [int("".join(map(str, indices_to_word(idx))), 2) for idx in index_lists], dtype=np.int64
-    )
-    products = monomials_of_weight(lower_generators, N)
-    top_mono: Monomial = (((N,),) if N % 2 else tuple([(2,)] * (N // 2)))
-    prod_nontop = [m for m in products if m != top_mono]
-
-    candidates = sorted(range(len(index_lists)), key=lambda i: generator_preference(index_lists[i]))
-
-    per_prime = []  # (p, coordinates mod p (n_words × n_basis), generator rows)
-    new_gens: List[Indices] | None = None
-    gen_rows: List[int] | None = None
-    for p in SMALL_PRIMES:
-        say(f"weight {N}: coaction modulo prime {len(per_prime) + 1}")
-        data = _PrimeData(p, store)
-        delta = _coaction_matrix(N, word_ints, data, fbasis)[:, nontop_cols]
-        # rows of the basis other than the top: products ...
-        prod_rows = np.zeros((len(prod_nontop), len(nontop)), dtype=np.int64)
-        for a, mono in enumerate(prod_nontop):
-            for key, c in monomial_falphabet(mono, store).items():
-                if key != top_key:
-                    prod_rows[a, nontop.index(key)] = to_mod(c, p)
-        # ... and new generators, greedily by preference (same prime-independent choice)
-        if gen_rows is None:
-            mat = [list(map(int, row)) for row in prod_rows]
-            rank = flint.nmod_mat(mat, p).rank() if mat else 0
-            if rank != len(prod_nontop):
-                raise InternalError(f"products are dependent at weight {N}: lower tables inconsistent")
-            chosen: List[int] = []
-            need = len(nontop) - rank
-            for i in candidates:
-                if len(chosen) == need:
-                    break
-                trial = mat + [list(map(int, delta[i]))]
-                r2 = flint.nmod_mat(trial, p).rank()
-                if r2 > rank:
-                    mat, rank = trial, r2
-                    chosen.append(i)
-            if rank != len(nontop):
-                raise InternalError(f"the coaction images do not span weight {N}; tables inconsistent")
-            gen_rows = chosen
-            new_gens = [index_lists[i] for i in chosen]
-        # basis element ζ(g) = (-1)^depth G(w_g): flip the rows of odd depth
-        gen_signs = np.array([(-1) ** len(index_lists[i]) for i in gen_rows], dtype=np.int64)
-        gen_part = (delta[gen_rows] * gen_signs[:, None]) % p
-        basis_rows = np.vstack([prod_rows, gen_part]) if len(prod_nontop) else gen_part
-        binv = flint.nmod_mat([list(map(int, row)) for row in basis_rows], p).inv()
-        binv_np = np.array([[int(binv[i, j]) for j in range(binv.ncols())] for i in range(binv.nrows())], dtype=np.int64)
-        coords = np.zeros((len(index_lists), binv_np.shape[1]), dtype=np.int64)
-        for start in range(0, delta.shape[1], 32):
-            coords = (coords + delta[:, start : start + 32] @ binv_np[start : start + 32]) % p
-        gen_delta = delta[gen_rows]
-        per_prime.append((p, coords, gen_delta))
-        if len(per_prime) >= 3:
-            rec = _reconstruct_all(per_prime[:-1])
-            if rec is not None and _agrees(rec, per_prime[-1]):
-                break
-    else:
-        raise InternalError(f"rational reconstruction failed at weight {N}; need more primes")
-    coords_q, gen_delta_q = rec
-    t1 = time.perf_counter()
-
-    # ---- numerics: the top coefficient of every word ------------------------
-    say(f"weight {N}: fixing {len(index_lists)} top coefficients numerically")
-    basis_monos: List[Monomial] = list(prod_nontop) + [(g,) for g in new_gens]
-    gens_needed = sorted({g for m in basis_monos + [top_mono] for g in m})
+    N = sum(index_lists[0]) if index_lists else 0
+    gens_needed = sorted({g for m in list(basis_monos) + [top_mono] for g in m})
+    reductions: Dict[Indices, Dict[Monomial, Fraction]] = {}
     with mpmath.workdps(digits + 20):
         gval = {g: zeta_numeric(g, digits + 20) for g in gens_needed}
         bval = []
@@ -400,12 +364,10 @@ def reduce_weight_motivic(
         topval = mpmath.mpf(1)
         for g in top_mono:
             topval *= gval[g]
-        word_vals = zeta_numeric_many(index_lists, digits + 20)
-        reductions: Dict[Indices, Dict[Monomial, Fraction]] = {}
+        word_vals = zeta_numeric_many(index_lists, digits + 20, small_bits=small_bits)
         tol = mpmath.mpf(10) ** (-(digits - 10))
-        for wi, idx in enumerate(index_lists):
+        for idx, row in zip(index_lists, coords):
             sign = -1 if len(idx) % 2 else 1  # ζ = (-1)^depth G
-            row = coords_q[wi]
             approx = mpmath.mpf(0)
             scale = abs(word_vals[idx])
             for a, q in row.items():
@@ -428,6 +390,119 @@ def reduce_weight_motivic(
             if c:
                 red[top_mono] = red.get(top_mono, Fraction(0)) + sign * c
             reductions[idx] = {m: v for m, v in red.items() if v}
+    return reductions
+
+
+def reduce_weight_motivic(
+    weight: int,
+    lower_generators: Sequence[Indices],
+    store,
+    *,
+    digits: int = 80,
+    progress: Callable[[str], None] | None = None,
+    client=None,
+) -> WeightTable:
+    """Reduce all convergent MZVs of ``weight`` via the coaction (see module doc).
+
+    ``store`` must hold the tables (and f-alphabet images) of all lower weights.
+    With a ``distributed.Client`` the coaction of each prime is one task (the
+    lower tables are sent to every worker once) and the numerical top
+    coefficients are computed in chunks of words, one task each; the table
+    is identical to the serial one.
+    """
+    import flint
+
+    from ..cluster import run_all, worker_count
+    from .numeric import _small_bits
+
+    say = progress or (lambda _m: None)
+    N = weight
+    t0 = time.perf_counter()
+    fbasis = {k: {key: i for i, key in enumerate(f_monomials(k))} for k in range(0, N + 1)}
+    top_key = (0, (N,)) if N % 2 else (N // 2, ())
+    nontop = [key for key in fbasis[N] if key != top_key]
+    nontop_cols = np.array([fbasis[N][key] for key in nontop], dtype=np.int64)
+
+    index_lists = admissible_indices(N)
+    word_ints = np.array(
+        [int("".join(map(str, indices_to_word(idx))), 2) for idx in index_lists], dtype=np.int64
+    )
+    products = monomials_of_weight(lower_generators, N)
+    top_mono: Monomial = (((N,),) if N % 2 else tuple([(2,)] * (N // 2)))
+    prod_nontop = [m for m in products if m != top_mono]
+
+    candidates = sorted(range(len(index_lists)), key=lambda i: generator_preference(index_lists[i]))
+
+    per_prime = []  # (p, coordinates mod p (n_words × n_basis), generator rows)
+    new_gens: List[Indices] | None = None
+    gen_rows: List[int] | None = None
+    deltas = _deltas(N, store, word_ints, nontop_cols, say, client)
+    try:
+        for p, delta in deltas:
+            # rows of the basis other than the top: products ...
+            prod_rows = np.zeros((len(prod_nontop), len(nontop)), dtype=np.int64)
+            for a, mono in enumerate(prod_nontop):
+                for key, c in monomial_falphabet(mono, store).items():
+                    if key != top_key:
+                        prod_rows[a, nontop.index(key)] = _mod(c, p)
+            # ... and new generators, greedily by preference (same prime-independent choice)
+            if gen_rows is None:
+                mat = [list(map(int, row)) for row in prod_rows]
+                rank = flint.nmod_mat(mat, p).rank() if mat else 0
+                if rank != len(prod_nontop):
+                    raise InternalError(f"products are dependent at weight {N}: lower tables inconsistent")
+                chosen: List[int] = []
+                need = len(nontop) - rank
+                for i in candidates:
+                    if len(chosen) == need:
+                        break
+                    trial = mat + [list(map(int, delta[i]))]
+                    r2 = flint.nmod_mat(trial, p).rank()
+                    if r2 > rank:
+                        mat, rank = trial, r2
+                        chosen.append(i)
+                if rank != len(nontop):
+                    raise InternalError(f"the coaction images do not span weight {N}; tables inconsistent")
+                gen_rows = chosen
+                new_gens = [index_lists[i] for i in chosen]
+            # basis element ζ(g) = (-1)^depth G(w_g): flip the rows of odd depth
+            gen_signs = np.array([(-1) ** len(index_lists[i]) for i in gen_rows], dtype=np.int64)
+            gen_part = (delta[gen_rows] * gen_signs[:, None]) % p
+            basis_rows = np.vstack([prod_rows, gen_part]) if len(prod_nontop) else gen_part
+            if len(nontop):
+                binv = flint.nmod_mat([list(map(int, row)) for row in basis_rows], p).inv()
+                binv_np = np.array([[int(binv[i, j]) for j in range(binv.ncols())] for i in range(binv.nrows())], dtype=np.int64)
+            else:  # weights 3 and 4: every word is a rational multiple of the top element
+                binv_np = np.zeros((0, 0), dtype=np.int64)
+            coords = np.zeros((len(index_lists), binv_np.shape[1]), dtype=np.int64)
+            for start in range(0, delta.shape[1], 32):
+                coords = (coords + delta[:, start : start + 32] @ binv_np[start : start + 32]) % p
+            gen_delta = delta[gen_rows]
+            per_prime.append((p, coords, gen_delta))
+            if len(per_prime) >= 3:
+                rec = _reconstruct_all(per_prime[:-1])
+                if rec is not None and _agrees(rec, per_prime[-1]):
+                    break
+        else:
+            raise InternalError(f"rational reconstruction failed at weight {N}; need more primes")
+    finally:
+        deltas.close()  # cancels primes computed ahead on a cluster
+    coords_q, gen_delta_q = rec
+    t1 = time.perf_counter()
+
+    # ---- numerics: the top coefficient of every word ------------------------
+    say(f"weight {N}: fixing {len(index_lists)} top coefficients numerically")
+    basis_monos: List[Monomial] = list(prod_nontop) + [(g,) for g in new_gens]
+    # one precision for all words, whichever chunk they are computed in
+    small = max(_small_bits(idx) for idx in index_lists)
+    n_chunks = 1 if client is None else min(len(index_lists), 2 * worker_count(client))
+    bounds = [len(index_lists) * i // n_chunks for i in range(n_chunks + 1)]
+    chunks = [(index_lists[a:b], coords_q[a:b]) for a, b in zip(bounds, bounds[1:])]
+    reductions: Dict[Indices, Dict[Monomial, Fraction]] = {}
+    for part in run_all(
+        client, _top_coefficients_of_chunk, chunks, basis_monos, top_mono, digits, small
+    ):
+        reductions.update(part)
     t2 = time.perf_counter()
     # generators themselves must map to themselves
     for g in new_gens:
@@ -451,6 +526,11 @@ def reduce_weight_motivic(
             "words": len(index_lists),
         },
     )
+
+
+def _top_coefficients_of_chunk(chunk, basis_monos, top_mono, digits, small_bits):
+    index_lists, coords = chunk
+    return _top_coefficients(index_lists, coords, basis_monos, top_mono, digits, small_bits)
 
 
 def _reconstruct_all(per_prime):

@@ -411,7 +411,7 @@ def word_numeric(word: Tuple[int, ...], digits: int = 30) -> mpmath.mpf:
 
 
 def zeta_numeric_many(
-    indices_list: Iterable[Tuple[int, ...]], digits: int = 30
+    indices_list: Iterable[Tuple[int, ...]], digits: int = 30, *, small_bits: int | None = None
 ) -> Dict[Tuple[int, ...], mpmath.mpf]:
     """Values of many convergent MZVs, sharing all partial sums.
 
@@ -426,6 +426,12 @@ def zeta_numeric_many(
         Index tuples of convergent MZVs (duplicates allowed; ``()`` gives 1).
     digits:
         Number of correct significant decimal digits wanted for each value.
+    small_bits:
+        Optional: ``b`` with every value ``≥ 2^-b`` (at least the bound the
+        list itself implies).  The working precision depends only on
+        ``digits``, ``b`` and the longest word, so pieces of one list
+        evaluated with the same ``b`` and word length give bit-identical
+        values to the whole list (used to split a table build into tasks).
 
     Returns
     -------
@@ -456,6 +462,8 @@ def zeta_numeric_many(
             out[()] = mpmath.mpf(1)
     if nonempty:
         small = max(_small_bits(i) for i in nonempty)
+        if small_bits is not None:
+            small = max(small, int(small_bits))
         words = [indices_to_word(i) for i in nonempty]
         for i, value in zip(nonempty, _evaluate_words(words, digits, small, as_zeta=True)):
             out[i] = value

@@ -426,6 +426,22 @@ class TableStore:
         meta = {k: v for k, v in data.items() if k not in ("basis", "reductions")}
         write_atomic(self.meta_path(w), json.dumps(meta, separators=(",", ":")))
 
+    def snapshot(self, max_weight: int) -> "TableStore":
+        """A copy holding the tables of weights ≤ ``max_weight`` in memory, which
+        never reads or builds files (``auto_build`` off): what is sent to the
+        workers of a distributed table build, so they need no shared directory."""
+        copy = TableStore(self.directory, auto_build=False)
+        for w in range(2, max_weight + 1):
+            self._need(w)
+            copy._reductions[w] = self._reductions[w]
+            copy._generators[w] = list(self._generators[w])
+            copy._dimension[w] = self._dimension[w]
+            copy._stats[w] = dict(self._stats.get(w, {}))
+            for g in self._generators[w]:
+                if g in self._falphabet:
+                    copy._falphabet[g] = self._falphabet[g]
+        return copy
+
     def forget(self) -> None:
         """Drop everything held in memory (files stay)."""
         self.__init__(self.directory, auto_build=self.auto_build)
@@ -465,6 +481,7 @@ def build_tables(
     progress: Callable[[int, str], None] | None = None,
     method: str = "auto",
     shuffle_max_weight: int = DOUBLE_SHUFFLE_MAX,
+    client=None,
 ) -> TableStore:
     """Build (or complete) the tables up to ``max_weight``.
 
@@ -483,6 +500,11 @@ def build_tables(
         ``"motivic"`` (coaction plus one numerically fixed rational per word,
         :mod:`lowenergy.zeta.motivic`; needs the lower weights built) or
         ``"auto"``: double shuffle up to ``shuffle_max_weight``, motivic above.
+    client:
+        A ``distributed.Client`` (see :func:`lowenergy.cluster.cluster_client`):
+        the weights of the motivic route run their per-prime coaction and
+        per-word numerics as tasks on it (identical tables); the double-shuffle
+        weights (one linear system per weight) stay in this process.
     """
     if method not in ("auto", "double-shuffle", "motivic"):
         raise TableError(f"unknown table method {method!r}", hint="use auto, double-shuffle or motivic")
@@ -515,7 +537,7 @@ def build_tables(
         if use_motivic and w >= 3:
             from .motivic import reduce_weight_motivic
 
-            table = reduce_weight_motivic(w, gens, store, progress=say)
+            table = reduce_weight_motivic(w, gens, store, progress=say, client=client)
         else:
             table = reduce_weight(w, gens, progress=say)
         # Make the new weight visible before computing the f-alphabet images,
