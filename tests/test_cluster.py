@@ -137,12 +137,12 @@ def test_cli_batch_on_two_workers_writes_the_serial_tables(tmp_path):
         ('integrand = "x^(-2-s)*(1-x)^(-t-1)"', "negative shifts"),  # found on a worker
     ],
 )
-def test_cli_batch_bad_file_one_line_exit_2_no_output(tmp_path, text, where):
+def test_cli_batch_bad_file_one_line_exit_2_no_output(client, tmp_path, text, where):
     bad = tmp_path / "bad.toml"
     bad.write_text(text + "\n")
     out = tmp_path / "out"
     result = _invoke(["expand", str(EXAMPLES / "open_superstring.toml"), str(bad), "--order", "3",
-                      "--out-dir", str(out), "--workers", "2"])
+                      "--out-dir", str(out), "--scheduler", client.scheduler.address])
     assert result.exit_code == 2
     lines = result.output.strip().splitlines()
     assert len(lines) == 1 and lines[0].startswith("error: ") and str(bad) in lines[0] and where in lines[0]
@@ -175,3 +175,16 @@ def test_unreachable_scheduler_is_a_user_error():
     with pytest.raises(ClusterError, match="cannot reach the Dask scheduler at tcp://127.0.0.1:9"):
         with cluster_client(scheduler="tcp://127.0.0.1:9", connect_timeout=1):
             pass
+
+
+def test_scheduler_address_connects_to_a_running_cluster(client, tmp_path):
+    # --scheduler ADDRESS: here the module's cluster, reached through its address
+    address = client.scheduler.address
+    with cluster_client(scheduler=address) as other:
+        assert worker_count(other) == 2
+    files = [str(EXAMPLES / "open_superstring.toml"), str(EXAMPLES / "closed_string.toml")]
+    serial = _invoke(["expand", *files, "--order", "3", "--out-dir", str(tmp_path / "serial")])
+    remote = _invoke(["expand", *files, "--order", "3", "--out-dir", str(tmp_path / "remote"), "--scheduler", address])
+    assert serial.exit_code == 0 and remote.exit_code == 0, remote.output
+    for name in ("open_superstring.csv", "closed_string.csv"):
+        assert (tmp_path / "remote" / name).read_text() == (tmp_path / "serial" / name).read_text()
