@@ -12,6 +12,9 @@ module.  Checked:
 * a batch of expansions (examples and invented integrands, interval and
   sphere) equals the serial batch, and the Beta function's coefficient of t
   is ζ(2) (A&S 6.1.33 via Γ(-s)Γ(1-t)/Γ(1-s-t));
+* ``lowenergy fix-each ANSATZ C1 C2 C3`` on the cluster prints the serial
+  reports, and each set's report is the one ``lowenergy fix ANSATZ Ck``
+  gives for that set alone;
 * ``lowenergy expand FILE... --out-dir DIR --workers 2`` writes the same CSV
   files as the serial batch; a bad file stops it with one line, exit code 2
   and no output directory, whether the error is found on reading or on a
@@ -188,3 +191,32 @@ def test_scheduler_address_connects_to_a_running_cluster(client, tmp_path):
     assert serial.exit_code == 0 and remote.exit_code == 0, remote.output
     for name in ("open_superstring.csv", "closed_string.csv"):
         assert (tmp_path / "remote" / name).read_text() == (tmp_path / "serial" / name).read_text()
+
+
+def test_fix_each_on_the_cluster_equals_serial_and_fix_per_set(client, tmp_path):
+    ansatz = tmp_path / "fc2.toml"
+    made = _invoke(["ansatz", "--weight", "2", "--family", "sv", "--mzv", "--degree", "1",
+                    "--symmetry", "symmetric", "--write", str(ansatz)])
+    assert made.exit_code == 0, made.output
+    sets = [str(EXAMPLES / f) for f in ("first_correction_poles.toml", "first_correction_localization.toml",
+                                        "curved_constraints.toml")]
+    serial = _invoke(["fix-each", str(ansatz), *sets, "--json"])
+    remote = _invoke(["fix-each", str(ansatz), *sets, "--json", "--scheduler", client.scheduler.address])
+    assert serial.exit_code == remote.exit_code
+    assert json.loads(remote.stdout) == json.loads(serial.stdout)
+    reports = json.loads(serial.stdout)["sets"]
+    assert [r["constraints"] for r in reports] == sets
+    assert {r["status"] for r in reports} >= {"inconsistent", "underdetermined"}
+    assert serial.exit_code == 1  # at least one set is inconsistent
+    for path, report in zip(sets, reports):
+        alone = _invoke(["fix", str(ansatz), path, "--json"])
+        assert json.loads(alone.stdout) == {k: v for k, v in report.items() if k != "constraints"}, path
+
+
+def test_fix_each_bad_constraint_file_is_one_line_exit_2(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text("[[constraint]]\nname = 1\n")
+    result = _invoke(["fix-each", str(EXAMPLES / "curved_ansatz.toml"), str(EXAMPLES / "curved_constraints.toml"),
+                      str(bad), "--workers", "2"])
+    assert result.exit_code == 2
+    assert len(result.output.strip().splitlines()) == 1 and str(bad) in result.output
