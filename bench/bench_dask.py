@@ -1,14 +1,15 @@
 """Serial against Dask (local worker processes): table builds and expansion batches.
 
-    python bench/bench_dask.py [--weight 13] [--order 10] [--files 8] [--max-workers 2] [--only tables|batch]
+    python bench/bench_dask.py [--weight 13] [--order 8] [--files 16] [--max-workers 2] [--only tables|batch]
 
 Prints figures only (no assertions):
 
 * ``tables``: one weight of the coaction route (default 13) built from the
   lower weights (copied from ``$LOWENERGY_CACHE_DIR``, which must hold them)
   into a fresh directory: serially, then on 1, 2, ... local workers;
-* ``batch``: ``--files`` invented integrands x^(-s-1)(1-x)^(-t-1) G(w; x), w
-  the weight-6 words with two letters 1 (first ones), expanded to ``--order``.
+* ``batch``: ``--files`` invented integrands, a 186-parameter single-valued
+  ansatz (words of weight ≤ 4) under the 16 factors x^(p-s-1)(1-x)^(q-t-1),
+  p, q = 0..3, expanded to ``--order`` (needs tables to weight 5 + order).
 
 Every configuration runs in a fresh process (and a fresh cluster) so that
 peak memory figures are its own: "client peak" is ru_maxrss of the process
@@ -34,6 +35,7 @@ import sys
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 
 def _peak_mb() -> float:
@@ -52,16 +54,22 @@ def _workers_cpu(client) -> float:
     return sum(client.run(_cpu_s).values()) if client is not None else 0.0
 
 
-def _words(count: int):
-    import itertools
+def _batch(count: int):
+    """``count`` invented integrands: an ansatz (every word of weight ≤ 4 under
+    svpolylog times s^i t^j, i + j ≤ 2, one free parameter each; 186
+    parameters) under the shifted factors x^(p-s-1) (1-x)^(q-t-1), p, q = 0..3."""
+    from bench_ansatz_expand import ansatz
+    from lowenergy.integrand.model import Integrand
+    from lowenergy.integrand.reader import terms_from_expression
 
+    text, params = ansatz(4)
+    body = text.split("*", 2)[2]  # drop the factor x^(-s-1)*(1-x)^(-t-1)
     out = []
-    for ones in itertools.combinations(range(6), 2):
-        w = [0] * 6
-        for i in ones:
-            w[i] = 1
-        out.append(tuple(w))
-    return out[:count]
+    for k in range(count):
+        p, q = divmod(k % 16, 4)
+        expr = f"x^({p}-s-1)*(1-x)^({q}-t-1)*{body}"
+        out.append(Integrand(terms=terms_from_expression(expr, parameters=params), parameters=tuple(params)))
+    return out
 
 
 def child(args) -> None:
@@ -102,14 +110,8 @@ def child(args) -> None:
                 shutil.rmtree(tmp, ignore_errors=True)
         else:
             from lowenergy.batch import expand_many
-            from lowenergy.integrand.reader import integrand_from_text
 
-            integrands = [
-                integrand_from_text(
-                    f'integrand = "x^(-s-1)*(1-x)^(-t-1)*G({",".join(map(str, w))}; x)"', source=f"<bench {i}>"
-                )
-                for i, w in enumerate(_words(args.files))
-            ]
+            integrands = _batch(args.files)
             w0 = _workers_cpu(client)
             c0, t1 = time.process_time(), time.perf_counter()
             results = expand_many(integrands, args.order, client=client)
@@ -160,8 +162,8 @@ def main() -> None:
     ap.add_argument("--child", choices=("tables", "batch"))
     ap.add_argument("--workers", type=int, default=0)
     ap.add_argument("--weight", type=int, default=13)
-    ap.add_argument("--order", type=int, default=10)
-    ap.add_argument("--files", type=int, default=8)
+    ap.add_argument("--order", type=int, default=8)
+    ap.add_argument("--files", type=int, default=16)
     ap.add_argument("--max-workers", type=int, default=2)
     ap.add_argument("--only", choices=("tables", "batch"))
     opts = ap.parse_args()
@@ -174,7 +176,7 @@ def main() -> None:
     for workload in workloads:
         rows = [run(workload, n, opts) for n in range(0, opts.max_workers + 1)]
         title = (f"table build, weight {opts.weight} ({rows[0]['size']} words)" if workload == "tables"
-                 else f"expansion batch, {rows[0]['size']} integrands G(w; x) of weight 6, order {opts.order}")
+                 else f"expansion batch, {rows[0]['size']} shifted 186-parameter ansatz integrands, order {opts.order}")
         report(title, rows)
         print(f"load average now: {' '.join(f'{x:.2f}' for x in os.getloadavg())}")
 
