@@ -219,3 +219,13 @@ def test_fix_each_bad_constraint_file_is_one_line_exit_2(tmp_path):
                       str(bad), "--workers", "2"])
     assert result.exit_code == 2
     assert len(result.output.strip().splitlines()) == 1 and str(bad) in result.output
+
+
+def test_a_cut_expansion_equals_the_expansion_made_to_that_order():
+    from lowenergy.commands.fix_each import _truncated_expansion
+
+    integrand = read_integrand(EXAMPLES / "curved_ansatz.toml")
+    high, low = expand_many([integrand, integrand], 6)[0], expand_many([integrand], 3)[0]
+    cut = _truncated_expansion(high, 3)
+    assert cut.order == 3 and vars(cut) == vars(low)
+    assert _truncated_expansion(high, 9) is high
