@@ -406,13 +406,14 @@ def reduce_weight_motivic(
 
     ``store`` must hold the tables (and f-alphabet images) of all lower weights.
     With a ``distributed.Client`` the coaction of each prime is one task (the
-    lower tables are sent to every worker once) and the numerical top
-    coefficients are computed in chunks of words, one task each; the table
-    is identical to the serial one.
+    lower tables are sent to every worker once); the rational reconstruction
+    and the numerical top coefficients run in chunks of words, one task each
+    (the coordinates stay on the workers between the two); the table is
+    identical to the serial one.
     """
     import flint
 
-    from ..cluster import run_all, worker_count
+    from ..cluster import worker_count
     from .numeric import _small_bits
 
     say = progress or (lambda _m: None)
@@ -433,6 +434,9 @@ def reduce_weight_motivic(
 
     candidates = sorted(range(len(index_lists)), key=lambda i: generator_preference(index_lists[i]))
 
+    # words in chunks, one task each on a cluster (reconstruction, numerics)
+    n_chunks = 1 if client is None else min(len(index_lists), 2 * worker_count(client))
+    bounds = [len(index_lists) * i // n_chunks for i in range(n_chunks + 1)]
     per_prime = []  # (p, coordinates mod p (n_words × n_basis), generator rows)
     new_gens: List[Indices] | None = None
     gen_rows: List[int] | None = None
@@ -480,14 +484,13 @@ def reduce_weight_motivic(
             gen_delta = delta[gen_rows]
             per_prime.append((p, coords, gen_delta))
             if len(per_prime) >= 3:
-                rec = _reconstruct_all(per_prime[:-1])
-                if rec is not None and _agrees(rec, per_prime[-1]):
+                coords_q = _reconstruct(per_prime, bounds, client)
+                if coords_q is not None:
                     break
         else:
             raise InternalError(f"rational reconstruction failed at weight {N}; need more primes")
     finally:
         deltas.close()  # cancels primes computed ahead on a cluster
-    coords_q, gen_delta_q = rec
     t1 = time.perf_counter()
 
     # ---- numerics: the top coefficient of every word ------------------------
@@ -495,14 +498,21 @@ def reduce_weight_motivic(
     basis_monos: List[Monomial] = list(prod_nontop) + [(g,) for g in new_gens]
     # one precision for all words, whichever chunk they are computed in
     small = max(_small_bits(idx) for idx in index_lists)
-    n_chunks = 1 if client is None else min(len(index_lists), 2 * worker_count(client))
-    bounds = [len(index_lists) * i // n_chunks for i in range(n_chunks + 1)]
-    chunks = [(index_lists[a:b], coords_q[a:b]) for a, b in zip(bounds, bounds[1:])]
-    reductions: Dict[Indices, Dict[Monomial, Fraction]] = {}
-    for part in run_all(
-        client, _top_coefficients_of_chunk, chunks, basis_monos, top_mono, digits, small
-    ):
-        reductions.update(part)
+    if client is None:
+        reductions = _top_coefficients(index_lists, coords_q, basis_monos, top_mono, digits, small)
+    else:
+        futures = [
+            client.submit(_top_coefficients_packed, index_lists[a:b], part, basis_monos, top_mono, digits, small,
+                          pure=False)
+            for (a, b), part in zip(zip(bounds, bounds[1:]), coords_q)
+        ]
+        try:
+            packed = client.gather(futures)
+        finally:
+            client.cancel(futures + list(coords_q))
+        reductions = {
+            idx: {mono: Fraction(n, d) for mono, n, d in terms} for part in packed for idx, terms in part
+        }
     t2 = time.perf_counter()
     # generators themselves must map to themselves
     for g in new_gens:
@@ -528,9 +538,48 @@ def reduce_weight_motivic(
     )
 
 
-def _top_coefficients_of_chunk(chunk, basis_monos, top_mono, digits, small_bits):
-    index_lists, coords = chunk
-    return _top_coefficients(index_lists, coords, basis_monos, top_mono, digits, small_bits)
+def _top_coefficients_packed(index_lists, coords, basis_monos, top_mono, digits, small_bits):
+    """:func:`_top_coefficients` of one chunk of words (a task), returned as
+    ``[(indices, [(monomial, numerator, denominator), ...]), ...]``: integers
+    travel between processes far more cheaply than Fractions."""
+    reductions = _top_coefficients(index_lists, coords, basis_monos, top_mono, digits, small_bits)
+    return [(idx, [(m, c.numerator, c.denominator) for m, c in red.items()]) for idx, red in reductions.items()]
+
+
+def _reconstruct_chunk(parts, check):
+    """Coordinates of one chunk of words from their residues modulo the primes
+    in ``parts`` (``[(p, rows)]``), confirmed by ``check`` (``(p, rows)``), or None."""
+    rec = _reconstruct_all([(p, rows, None) for p, rows in parts])
+    if rec is None or not _agrees(rec, (check[0], check[1], None)):
+        return None
+    return rec[0]
+
+
+def _is_reconstructed(coords) -> bool:
+    return coords is not None
+
+
+def _reconstruct(per_prime, bounds, client):
+    """The rational coordinates of all words from all primes but the last,
+    confirmed by the last; None if that fails for any word (more primes needed).
+
+    Every word is reconstructed on its own, so on a cluster each chunk of
+    words is one task and the coordinates stay on the workers: the result is
+    then the list of their futures, one per chunk, for the numerics tasks.
+    """
+    if client is None:
+        rec = _reconstruct_all(per_prime[:-1])
+        return rec[0] if rec is not None and _agrees(rec, per_prime[-1]) else None
+    p_check, rows_check, _ = per_prime[-1]
+    futures = [
+        client.submit(_reconstruct_chunk, [(p, rows[a:b]) for p, rows, _ in per_prime[:-1]], (p_check, rows_check[a:b]),
+                      pure=False)
+        for a, b in zip(bounds, bounds[1:])
+    ]
+    if all(client.gather([client.submit(_is_reconstructed, f, pure=False) for f in futures])):
+        return futures
+    client.cancel(futures)
+    return None
 
 
 def _reconstruct_all(per_prime):
