@@ -32,7 +32,6 @@ from __future__ import annotations
 
 import time
 from fractions import Fraction
-from math import gcd
 from typing import Callable, Dict, Iterator, List, Sequence, Tuple
 
 import numpy as np
@@ -450,7 +449,7 @@ def reduce_weight_motivic(
             for a, mono in enumerate(prod_nontop):
                 for key, c in monomial_falphabet(mono, store).items():
                     if key != top_key:
-                        prod_rows[a, nontop.index(key)] = _mod(c, p)
+                        prod_rows[a, nontop.index(key)] = to_mod(c, p)
             # ... and new generators, greedily by preference (same prime-independent choice)
             if gen_rows is None:
                 mat = [list(map(int, row)) for row in prod_rows]
