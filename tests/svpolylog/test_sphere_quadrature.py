@@ -118,18 +118,23 @@ def test_depth_two_insertions_against_plane_quadrature():
             itg = integrand_from_text(f'domain = "sphere"\nvariables = ["S", "T"]\nintegrand = "{text}"', source="t.toml")
             e = expand_sphere(itg, 10)
             for p in POINTS:
-                S, T = mpmath.mpf(p[0]), mpmath.mpf(p[1])
-                series = mpmath.mpf(0)
-                top = mpmath.mpf(0)
-                for (i, j), v in e.coefficients.items():
-                    term = v[()].numeric(30) * S ** i * T ** j
-                    series += term
-                    if i + j == 10:
-                        top += term
+                series, top = _series_and_top(e, p, 10)
                 value, coarse = quad[(p, w)]
                 assert abs(top) < 2e-15 * abs(series), (w, p)
                 assert abs(value - coarse) < 1e-6 * abs(value), (w, p)
                 assert abs(value - series) < 1e-15 * abs(value), (w, p, value, series)
+
+
+def _series_and_top(e, point, order):
+    """The truncated series at ``point`` = (S, T) and its order-``order`` part (30 digits)."""
+    S, T = mpmath.mpf(point[0]), mpmath.mpf(point[1])
+    series = top = mpmath.mpf(0)
+    for (i, j), v in e.coefficients.items():
+        term = v[()].numeric(30) * S ** i * T ** j
+        series += term
+        if i + j == order:
+            top += term
+    return series, top
 
 
 SMALL_POINTS = [("-0.002", "-0.001"), ("-0.001", "-0.002"), ("-0.0015", "-0.0015")]
@@ -152,14 +157,7 @@ def test_weight_four_depth_three_insertion_against_plane_quadrature():
     assert all(i >= 0 and j >= 0 for i, j in e.coefficients)   # no poles
     with mpmath.workdps(30):
         for p in SMALL_POINTS:
-            S, T = mpmath.mpf(p[0]), mpmath.mpf(p[1])
-            series = mpmath.mpf(0)
-            top = mpmath.mpf(0)
-            for (i, j), v in e.coefficients.items():
-                term = v[()].numeric(30) * S ** i * T ** j
-                series += term
-                if i + j == 9:
-                    top += term
+            series, top = _series_and_top(e, p, 9)
             value, coarse = quad[(p, w)]
             assert abs(top) < 1e-18 * abs(series), p
             assert abs(value - coarse) < 1e-6 * abs(value), p
