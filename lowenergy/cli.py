@@ -692,9 +692,18 @@ def _pole_table(integrand_or_source, sets):
         from .integrand.reader import read_integrand
 
         integrand_or_source = read_integrand(integrand_or_source)
+    return _residues_of(integrand_or_source, need)
+
+
+def _residues_of(integrand, levels: int):
+    """Pole parts of an interval or sphere integrand."""
+    if getattr(integrand, "domain", "interval") == "sphere":
+        from .svpolylog.sphere_residues import sphere_residues
+
+        return sphere_residues(integrand, levels)
     from .spectrum.residues import residues as compute_residues
 
-    return compute_residues(integrand_or_source, need)
+    return compute_residues(integrand, levels)
 
 
 @app.command(epilog=_exit_codes("1 a constraint fails"), short_help="Check coefficients against a constraint set.")
@@ -836,7 +845,7 @@ def residues(
 
     from .errors import InputError
     from .integrand.reader import read_integrand
-    from .spectrum import partial_waves, residues as find_residues
+    from .spectrum import partial_waves
 
     _check_digits(digits)
     if levels < 0 or levels > 200:
@@ -860,7 +869,7 @@ def residues(
         from .constraints import substitute
 
         integrand = substitute(integrand, _parse_point(at))
-    table = find_residues(integrand, levels)
+    table = _residues_of(integrand, levels)
     if divide_by:
         from .tables.bases import parse_polynomial
 

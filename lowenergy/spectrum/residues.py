@@ -283,6 +283,10 @@ class ResidueTable:
         the parameters; the pole part is ``Σ_m R_m/(var - location)^m``.
     title, source:
         From the integrand.
+    u_poles:
+        Sphere integrals only: ``{location: {order m: R_m}}``, the pole parts
+        ``Σ_m R_m/(U - location)^m`` in ``U = -S-T`` (from z → ∞), ``R_m`` a
+        :data:`ResiduePoly` in the *first* variable (T = -S-U substituted).
     """
 
     variables: Tuple[str, str]
@@ -292,6 +296,17 @@ class ResidueTable:
     title: str = ""
     source: str = ""
     meta: dict = field(default_factory=dict)
+    u_poles: Dict[Fraction, Dict[int, ResiduePoly]] = field(default_factory=dict)
+
+    @property
+    def u_name(self) -> str:
+        """The name of the third Mandelstam variable in the rows (``U``, or ``u_`` if taken)."""
+        return "U" if "U" not in self.variables and "U" not in self.parameters else "u_"
+
+    def u_residue_text(self, location, order: int = 1, style: str = "plain") -> str:
+        """The numerator of ``1/(U - location)^order`` as text (a polynomial in the first variable)."""
+        rp = self.u_poles.get(Fraction(location), {}).get(order, {})
+        return poly_text(rp, self.variables[0], self.parameters, style)
 
     # -- lookup -------------------------------------------------------------------
     def var_index(self, var: VarSpec) -> int:
@@ -430,6 +445,21 @@ class ResidueTable:
                         coef = rpoly[power][pkey]
                         rows.append({
                             "variable": self.variables[v],
+                            "location": fraction_text(p),
+                            "order": m,
+                            "power": power,
+                            "param": _param_text(pkey, self.parameters),
+                            "exact": coef.to_text(),
+                            "numeric": _numeric_text(coef, digits),
+                        })
+        for p in sorted(self.u_poles):
+            for m in sorted(self.u_poles[p], reverse=True):
+                rpoly = self.u_poles[p][m]
+                for power in sorted(rpoly):
+                    for pkey in sorted(rpoly[power]):
+                        coef = rpoly[power][pkey]
+                        rows.append({
+                            "variable": self.u_name,
                             "location": fraction_text(p),
                             "order": m,
                             "power": power,
@@ -586,6 +616,26 @@ def _endpoint_poles(
                     elif power:
                         raise AssertionError("binomial series without variable has degree 0")
                     _padd(slot, tuple(key), cu * value)
+    poles_from_expansions(coefficient, near, expansions, levels, out)
+
+
+def poles_from_expansions(
+    coefficient: Poly,
+    near,
+    expansions: Dict[Tuple[int, int], Poly],
+    levels: int,
+    out: Dict[Tuple[int, Fraction], Dict[int, Poly]],
+) -> None:
+    """Pole parts from the expansion at an end point.
+
+    ``expansions[(m, k)]`` is the exact polynomial ``E_{m,k}`` (full exponent
+    keys) multiplying ``x^m log(x)^k/k!`` next to ``x^(near)``; each gives
+    ``(-1)^k c^-(k+1) coefficient·E_{m,k} / (v - p_m)^(k+1)`` (module
+    docstring), Taylor expanded around the location and accumulated in
+    ``out[(near.var, p_m)][order]``.  Shared with the sphere residues
+    (:mod:`lowenergy.svpolylog.sphere_residues`), whose diagonal terms
+    ``|z|^(2m) log^k|z|²/k!`` integrate to the same ``(-1)^k/α^(k+1)``.
+    """
     for (m, k), poly in expansions.items():
         full: Poly = {}
         for ka, va in coefficient.items():
@@ -751,10 +801,9 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
         raise InputError(f"levels must be a non-negative integer, got {levels!r}")
     if getattr(integrand, "domain", "interval") != "interval":
         raise InputError(
-            f"residues of {integrand.domain} integrands are not implemented yet",
+            f"this function computes the poles of interval integrals, not of {integrand.domain} integrands",
             source=integrand.source,
-            hint="the massive poles of sphere integrals need the expansion of L_w(z) at z = 0 and 1 "
-            "in z and conj(z); use expand for the massless poles",
+            hint="use lowenergy.svpolylog.sphere_residues.sphere_residues (the CLI's residues does so)",
         )
     store = store or default_store()
     nvars = integrand.nvars

@@ -101,8 +101,17 @@ def test_example_sphere_ansatz_is_fixed(tmp_path):
     assert run("check", fixed, ex / "sphere_constraints.toml").exit_code == 0
 
 
-def test_residues_of_sphere_files_refused_not_wrong(tmp_path):
+def test_residues_of_sphere_files(tmp_path):
+    # γ(-S)γ(1-T)γ(S+T) = Γ(-S)Γ(1-T)Γ(S+T)/(Γ(1+S)Γ(T)Γ(1-S-T)): by hand,
+    # Res_{S=1} = (+1)·Γ(1-T)Γ(1+T)/(Γ(T)Γ(-T)) = -T², Res_{S=0} = -1, Res_{U=0} = -1
     f = tmp_path / "shifted.toml"
     f.write_text(SHIFTED)
-    res = run("residues", f, "--levels", 2)
-    assert res.exit_code == 2 and "not implemented" in res.output
+    res = run("residues", f, "--levels", 1, "--json")
+    assert res.exit_code == 0, res.output
+    rows = {(r["variable"], r["location"], r["order"], r["power"]): r["exact"] for r in json.loads(res.stdout)}
+    assert rows[("S", "1", 1, 2)] == "-1" and rows[("S", "0", 1, 0)] == "-1"
+    assert rows[("U", "0", 1, 0)] == "-1"
+    assert not any(k[0] == "S" and k[1] == "1" and k[3] != 2 for k in rows)
+    csv = tmp_path / "r.csv"
+    res = run("residues", f, "--levels", 1, "--csv", csv)
+    assert res.exit_code == 0 and "U,0,1,0,1,-1" in csv.read_text()
