@@ -146,6 +146,10 @@ class CoefficientValues:
 
     def _compute(self, ref: CoefficientRef) -> ParamPoly:
         a, b = ref.a, ref.b
+        if ref.u is not None:
+            # U-channel pole row of a sphere expansion: the coefficient of s^a U^u
+            upoles = getattr(self.expansion, "u_poles", None) or {}
+            return {pe: x for pe, x in upoles.get((a, ref.u), {}).items() if x}
         if ref.family == "c":
             return self.c(a, b)
         if ref.family == "sym":

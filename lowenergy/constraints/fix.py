@@ -834,9 +834,16 @@ def _substitute_expansion(expansion: Expansion, mapping: Dict[str, Affine]) -> E
         new = sub.poly(pp, 0)
         if new:
             coefficients[key] = new
+    # the U-channel rows of sphere expansions carry the same parameter keys
+    u_poles = {}
+    for key, pp in (getattr(expansion, "u_poles", None) or {}).items():
+        new = sub.poly(pp, 0)
+        if new:
+            u_poles[key] = new
     meta = dict(expansion.meta)
     meta["fixed"] = {**meta.get("fixed", {}), **_fixed_note(mapping)}
-    return dataclasses.replace(expansion, parameters=sub.remaining, coefficients=coefficients, meta=meta)
+    return dataclasses.replace(expansion, parameters=sub.remaining, coefficients=coefficients, meta=meta,
+                               u_poles=u_poles)
 
 
 def _substitute_integrand(integrand: Integrand, mapping: Dict[str, Affine]) -> Integrand:

@@ -272,15 +272,21 @@ class CoefficientRef:
     column: int = field(default=0, compare=False)
     placeholder: str = field(default="", compare=False)
     text: str = field(default="", compare=False)
+    #: third index of a U-channel pole row ``c[i,0,k]`` (power k < 0 of U = -s-t), else None
+    u: Optional[int] = None
 
     @property
     def name(self) -> str:
-        """Canonical spelling, ``c[2,-1]``."""
+        """Canonical spelling, ``c[2,-1]`` (``c[0,0,-1]`` for a U-channel row)."""
+        if self.u is not None:
+            return f"{self.family}[{self.a},{self.b},{self.u}]"
         return f"{self.family}[{self.a},{self.b}]"
 
     @property
     def order(self) -> int:
-        """Total order in s, t: ``i + j`` (``c``, ``sym``) or ``2a + 3b`` (``sigma``)."""
+        """Total order in s, t: ``i + j`` (``c``, ``sym``), ``i + k`` (``c[i,0,k]``) or ``2a + 3b`` (``sigma``)."""
+        if self.u is not None:
+            return self.a + self.u
         return 2 * self.a + 3 * self.b if self.family == "sigma" else self.a + self.b
 
     def __str__(self) -> str:
@@ -748,6 +754,11 @@ def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) ->
         raise ParseError(f"unknown coefficient family '{_short(family, 30)}'", column=start + 1, term=_short(term), hint=hint)
     inner = text[bracket + 1 : close]
     m = re.fullmatch(r"[ \t]*([+-]?)[ \t]*(\d+)[ \t]*,[ \t]*([+-]?)[ \t]*(\d+)[ \t]*", inner)
+    if not m and family == "c":
+        third = re.fullmatch(
+            r"[ \t]*([+-]?)[ \t]*(\d+)[ \t]*,[ \t]*([+-]?)[ \t]*(\d+)[ \t]*,[ \t]*([+-]?)[ \t]*(\d+)[ \t]*", inner)
+        if third:
+            return _read_u_ref(third, family, term, text, start, close, index)
     if not m:
         raise ParseError(
             f"malformed coefficient reference '{_short(term, 40)}'",
@@ -780,6 +791,26 @@ def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) ->
         )
     end = close + 1
     ref = CoefficientRef(family, a, b, column=start + 1, placeholder=_placeholder(index, end - start), text=term)
+    return ref, end
+
+
+def _read_u_ref(m, family: str, term: str, text: str, start: int, close: int,
+                index: int) -> Tuple[CoefficientRef, int]:
+    """``c[i,0,k]``: the coefficient of s^i U^k (k < 0), a U-channel pole row of a sphere expansion."""
+    if any(len(m.group(g)) > 6 for g in (2, 4, 6)):
+        raise InputError(f"index too large in {_short(term, 40)}", column=start + 1, term=_short(term),
+                         hint=f"indices are at most {MAX_INDEX} in absolute value")
+    a, b, k = (int(m.group(g + 1)) * (-1 if m.group(g) == "-" else 1) for g in (1, 3, 5))
+    if max(abs(a), abs(b), abs(k)) > MAX_INDEX:
+        raise InputError(f"index too large in {_short(term, 40)}", column=start + 1, term=_short(term),
+                         hint=f"indices are at most {MAX_INDEX} in absolute value")
+    if b != 0 or k >= 0 or a < 0:
+        raise InputError(
+            f"invalid U-channel coefficient name {_short(term, 40)}", column=start + 1, term=_short(term),
+            hint="c[i,0,k] (i >= 0, k < 0) is the coefficient of s^i U^k, U = -s-t, as expand writes it",
+        )
+    end = close + 1
+    ref = CoefficientRef(family, a, b, column=start + 1, placeholder=_placeholder(index, end - start), text=term, u=k)
     return ref, end
 
 
