@@ -50,7 +50,8 @@ def test_prints_the_file_without_write():
         (["--weight", "2", "--symmetry", "symmetric", "--y-shift", "1"], "needs equal --x-shift"),
         (["--weight", "2", "--prefix", "zeta"], "reserved"),
         (["--weight", "2", "--prefix", "2a"], "--prefix must be letters"),
-        (["--weight", "2", "--domain", "sphere"], "unknown --domain"),
+        (["--weight", "2", "--domain", "disc"], "unknown --domain"),
+        (["--weight", "2", "--domain", "sphere", "--family", "mpl"], "multivalued on the sphere"),
     ],
 )
 def test_bad_options_write_nothing(tmp_path, args, message):

@@ -50,8 +50,18 @@ Options (:class:`AnsatzSpec`):
   ``-s-1+p`` and ``-t-1+q`` (symmetry needs p = q);
 * ``prefix`` — parameters are ``prefix1, prefix2, ...``; ``title`` — the
   file's title (default: a description of the ansatz);
-* ``domain`` — ``"line"`` (functions of real 0 < x < 1); the extension
-  point for other integration domains (:data:`DOMAINS`).
+* ``domain`` — ``"line"`` (functions of real 0 < x < 1) or ``"sphere"``
+  (closed strings, :data:`DOMAINS`): the integrand
+  ``(1/π) ∫ d²z |z|^(-2S-2+2p) |1-z|^(-2T-2+2q) · Σ_k a_k m_k(S, T) c_k L_{w_k}(z)``
+  with Brown's single-valued ``L_w(z)`` (family ``sv`` only; the sphere
+  engine needs ``p + q ≤ 1``).  Independence: the ``L_w(z)`` with distinct
+  words are linearly independent over the complex numbers (``L_w = G(w; z)
+  + Σ`` products with antiholomorphic factors of positive weight, and the
+  ``G(u; z) G(v; z̄)`` are independent), so every ``c · L_w`` is kept.  The
+  symmetry is crossing of closed strings, ``I(z; S, T) = ± I(1-z; T, S)``,
+  with ``L_w(1-z) = Σ_u μ_u L_u(z)`` (single-valued MZVs ``μ_u``,
+  :func:`lowenergy.svpolylog.sphere_residues.words_at_one`; written
+  ``svpolylog(w; 1-z)`` in the file).
 
 A new family is one more entry of :data:`FAMILIES`: a :class:`Family` with
 the largest weight it supports, the text of ``F(w; x)`` and ``F(w; 1-x)``,
@@ -105,8 +115,8 @@ __all__ = [
 Word = Tuple[int, ...]
 Monomial = Tuple[Tuple[int, ...], ...]
 
-#: Integration domains the generator knows (functions of real 0 < x < 1).
-DOMAINS = ("line",)
+#: Integration domains the generator knows: real 0 < x < 1, or the sphere (d²z/π over the plane).
+DOMAINS = ("line", "sphere")
 DEGREE_RULES = ("fixed", "falling", "rising")
 SYMMETRIES = ("none", "symmetric", "antisymmetric")
 #: Refuse larger ansätze (the integrand reader and fix would struggle anyway).
@@ -115,7 +125,7 @@ MAX_PARAMETERS = 5000
 MAX_CANDIDATES = 2100
 MAX_DEGREE = 30
 MAX_SHIFT = 8
-_RESERVED = frozenset({"zeta", "pi", "G", "Li", "log", "svpolylog", "s", "t", "x"})
+_RESERVED = frozenset({"zeta", "pi", "G", "Li", "log", "svpolylog", "abs", "s", "t", "x", "S", "T", "z"})
 
 
 def _word_args(word: Word) -> str:
@@ -200,6 +210,18 @@ class AnsatzSpec:
         integer("degree", self.degree, 0, MAX_DEGREE)
         integer("x_shift", self.x_shift, 0, MAX_SHIFT)
         integer("y_shift", self.y_shift, 0, MAX_SHIFT)
+        if self.domain == "sphere":
+            if self.family != "sv":
+                raise InputError(
+                    f"--family {self.family} is multivalued on the sphere",
+                    hint="use --family sv (Brown's single-valued polylogarithms L_w(z)) with --domain sphere",
+                )
+            if self.x_shift + self.y_shift > 1:
+                raise InputError(
+                    f"--x-shift {self.x_shift} --y-shift {self.y_shift}: the sphere expansion supports "
+                    "|z|^(-2S-2+2p)|1-z|^(-2T-2+2q) with p + q <= 1 only",
+                    hint="use shifts (0, 0), (1, 0) or (0, 1) with --domain sphere",
+                )
         if self.degree_rule not in DEGREE_RULES:
             raise InputError(f"unknown --degree-rule {self.degree_rule!r}", hint="known: " + ", ".join(DEGREE_RULES))
         if self.symmetry not in SYMMETRIES:
@@ -227,7 +249,8 @@ class AnsatzSpec:
     def rule_text(self) -> str:
         rel = "=" if self.exact_degree else "<="
         form = {"fixed": f"{self.degree}", "falling": f"{self.degree} + {self.weight} - w", "rising": f"{self.degree} + w"}
-        return f"i + j {rel} {form[self.degree_rule]} (rule '{self.degree_rule}', w the total weight of c*F)"
+        v1, v2 = self.names[:2]
+        return f"{v1}^i {v2}^j: i + j {rel} {form[self.degree_rule]} (rule '{self.degree_rule}', w the total weight of c*F)"
 
     def command(self) -> str:
         """The command line that regenerates this ansatz."""
@@ -245,9 +268,16 @@ class AnsatzSpec:
             parts.append(f"--x-shift {self.x_shift} --y-shift {self.y_shift}")
         if self.prefix != "a":
             parts.append(f"--prefix {self.prefix}")
+        if self.domain != "line":
+            parts.append(f"--domain {self.domain}")
         if self.title:
             parts.append(f"--title {shlex.quote(self.title)}")
         return " ".join(parts)
+
+    @property
+    def names(self) -> Tuple[str, str, str, str]:
+        """The names of (first variable, second variable, argument, reflected argument) in the file."""
+        return ("S", "T", "z", "1-z") if self.domain == "sphere" else ("s", "t", "x", "1-x")
 
 
 @dataclass(frozen=True)
@@ -281,14 +311,16 @@ class AnsatzTerm:
     candidate: Candidate
     monomial: Tuple[int, int]
     sign: int = 0  # 0: no symmetry; +1 / -1: symmetric / antisymmetric image added
+    names: Tuple[str, str, str, str] = ("s", "t", "x", "1-x")
 
     def text(self) -> str:
         c = self.candidate
-        direct = _join(_mono_text(self.monomial), c.function_text("x"))
+        v1, v2, arg, image_arg = self.names
+        direct = _join(_mono_text(self.monomial, (v1, v2)), c.function_text(arg))
         pre = _join(self.parameter, c.constant_text())
         if not self.sign:
             return _join(pre, direct)
-        image = _join(_mono_text(self.monomial[::-1]), c.function_text("1-x"))
+        image = _join(_mono_text(self.monomial[::-1], (v1, v2)), c.function_text(image_arg))
         if image == direct and self.sign > 0:
             return _join("2", pre, direct)
         return f"{pre}*({direct} {'+' if self.sign > 0 else '-'} {image})"
@@ -299,9 +331,9 @@ def _join(*pieces: str) -> str:
 
 
 
-def _mono_text(m: Tuple[int, int]) -> str:
+def _mono_text(m: Tuple[int, int], names: Sequence[str] = ("s", "t")) -> str:
     out = []
-    for name, e in zip("st", m):
+    for name, e in zip(names, m):
         if e == 1:
             out.append(name)
         elif e > 1:
@@ -360,6 +392,12 @@ class Ansatz:
             k = shift - 1
             return f"-{var}" if k == 0 else f"-{var}{k:+d}"
 
+        if self.spec.domain == "sphere":
+            def sphere(var: str, shift: int) -> str:
+                k = 2 * (shift - 1)
+                return f"-2*{var}" if k == 0 else f"-2*{var}{k:+d}"
+
+            return f"abs(z)^({sphere('S', self.spec.x_shift)})*abs(1-z)^({sphere('T', self.spec.y_shift)})"
         return f"x^({exponent('s', self.spec.x_shift)})*(1-x)^({exponent('t', self.spec.y_shift)})"
 
     def to_toml(self) -> str:
@@ -371,17 +409,25 @@ class Ansatz:
             "1 and the canonical MZV basis monomials of lower weight (lowenergy.zeta tables)"
             if spec.mzv else "1 (no MZV constants)"
         )
+        v1, v2, x, y = spec.names
         sym = {
             "none": "none imposed",
-            "symmetric": "I(x; s, t) = I(1-x; t, s); each parameter multiplies m(s,t) c F(x) + m(t,s) c F(1-x)",
-            "antisymmetric": "I(x; s, t) = -I(1-x; t, s); each parameter multiplies m(s,t) c F(x) - m(t,s) c F(1-x)",
+            "symmetric": f"I({x}; {v1}, {v2}) = I({y}; {v2}, {v1}); each parameter multiplies "
+                         f"m({v1},{v2}) c F({x}) + m({v2},{v1}) c F({y})",
+            "antisymmetric": f"I({x}; {v1}, {v2}) = -I({y}; {v2}, {v1}); each parameter multiplies "
+                             f"m({v1},{v2}) c F({x}) - m({v2},{v1}) c F({y})",
         }[spec.symmetry]
+        description = fam.description
+        measure = ""
+        if spec.domain == "sphere":
+            description = "Brown's single-valued polylogarithms L_w(z) of complex z, svpolylog(w; z)"
+            measure = "(1/pi) int d^2z "
         summary = [
             f"Generated by lowenergy {__version__}: {spec.command()}",
-            f"integrand = {self.koba_nielsen()} * sum_k a_k * m_k(s,t) * c_k * F_k(x), where",
-            f"  F_k: {fam.description}, total weight of c_k*F_k {weights};",
+            f"integrand = {measure}{self.koba_nielsen()} * sum_k a_k * m_k({v1},{v2}) * c_k * F_k({x}), where",
+            f"  F_k: {description}, total weight of c_k*F_k {weights};",
             f"  c_k: {constants};",
-            f"  m_k = s^i t^j with {spec.rule_text()};",
+            f"  m_k = {spec.rule_text()};",
             f"  symmetry: {sym}.",
             f"Independence: of {self.functions} candidate products c*F, {self.independent_functions} are linearly",
             "independent over Q (exact rank after splitting MZV coefficients by canonical basis element);",
@@ -396,7 +442,8 @@ class Ansatz:
         title = spec.title or f"Ansatz: {fam.key} functions up to weight {spec.weight}, {len(self.terms)} parameters"
         body = "\n".join(f"  {'+ ' if i else '  '}{t.text()}" for i, t in enumerate(self.terms))
         notes = " ".join(s.strip() for s in summary[1:])
-        out = lines + [
+        head = ['domain = "sphere"', 'variables = ["S", "T"]'] if spec.domain == "sphere" else []
+        out = lines + head + [
             f"title = {_toml_str(title)}",
             f"provenance = {_toml_str(summary[0])}",
             f"notes = {_toml_str(notes)}",
@@ -506,12 +553,24 @@ def generate(spec: AnsatzSpec, store: TableStore | None = None) -> Ansatz:
     if spec.weight >= 2:
         store.reduction((spec.weight,))  # TableError naming the command if not built
     combos: Dict[Word, Dict[Word, MZV]] = {}
+    sphere_values = None
+    if spec.domain == "sphere":
+        from ..svpolylog.sphere import SphereValues  # svpolylog sits after the integrand layer
+
+        sphere_values = SphereValues("direct", store)
 
     def combination(word: Word, arg: str) -> Dict[Word, MZV]:
         key = (word, arg)
         if key not in combos:
-            base = family.combination(word, store) if word else {(): MZV.one()}
-            combos[key] = base if arg == "x" else _at_one_minus_x(base, store)
+            if sphere_values is not None:
+                # coordinates in the independent L_u(z) (module docstring)
+                from ..svpolylog.sphere_residues import words_at_one
+
+                combos[key] = {word: MZV.one()} if arg == "x" else (
+                    words_at_one(word, sphere_values) if word else {(): MZV.one()})
+            else:
+                base = family.combination(word, store) if word else {(): MZV.one()}
+                combos[key] = base if arg == "x" else _at_one_minus_x(base, store)
         return combos[key]
 
     candidates: List[Candidate] = []
@@ -578,5 +637,5 @@ def generate(spec: AnsatzSpec, store: TableStore | None = None) -> Ansatz:
     terms: List[AnsatzTerm] = []
     for chosen in terms_by_weight:
         for c, m, sign in chosen:
-            terms.append(AnsatzTerm(f"{spec.prefix}{len(terms) + 1}", c, m, sign))
+            terms.append(AnsatzTerm(f"{spec.prefix}{len(terms) + 1}", c, m, sign, spec.names))
     return Ansatz(spec, candidates, independent, terms, per_weight)

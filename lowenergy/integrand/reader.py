@@ -70,7 +70,8 @@ the integration variable defaults to ``z``.  The integrand may then contain
 ``abs(z)^(e)`` and ``abs(1-z)^(e)`` with ``e`` an *even* integer plus a
 rational multiple of one expansion variable (the 2 written out:
 ``abs(z)^(-2*s-2)``), ``log(abs(z))``, ``log(abs(1-z))``,
-``svpolylog(a1, ..., an; z)`` (Brown's L_w(z), letters 0 and 1),
+``svpolylog(a1, ..., an; z)`` (Brown's L_w(z), letters 0 and 1) and
+``svpolylog(a1, ..., an; 1-z)`` (rewritten as a combination of L_u(z)),
 polynomials in the variables and parameters and MZV constants.  Terms are
 stored with ``x_exp``/``y_exp`` the exponents of ``|z|²`` and ``|1-z|²`` and
 ``word`` the L-word (``L_u L_v = L_{u ш v}``; ``log|z|² = L_0``,
@@ -1338,9 +1339,17 @@ class _SphereEvaluator(_Evaluator):
             letters = self.letters(node)
             if len(letters) > MAX_WORD_LENGTH:
                 raise self.fail(node, f"word longer than {MAX_WORD_LENGTH} letters")
-            if self.x_argument(node.args[0]) != "x":
-                raise self.fail(node.args[0], f"svpolylog is supported only at {z} on the sphere",
+            kind = self.x_argument(node.args[0])
+            if kind not in ("x", "1-x"):
+                raise self.fail(node.args[0], f"svpolylog is supported only at {z} and 1-{z} on the sphere",
                                 f"write svpolylog(0,1; {z})")
+            if kind == "1-x":
+                # L_w(1-z) = Σ_u c_u L_u(z), c_u single-valued MZVs (lowenergy.svpolylog.sphere_residues)
+                require_weight(len(letters), self.store)
+                from ..svpolylog.sphere import SphereValues
+                from ..svpolylog.sphere_residues import words_at_one
+
+                return self.words(words_at_one(tuple(letters), SphereValues("direct", self.store)))
             return self.words({tuple(letters): MZV.one()})
         return super().call(node)
 
