@@ -129,6 +129,10 @@ Coefficient names (shared with the tables, :mod:`lowenergy.tables.bases`):
 ``c[i,j]``
     The coefficient of ``s^i t^j`` (``i``, ``j`` integers; poles negative,
     e.g. ``c[-1,0]`` multiplies ``1/s``).  Order ``i + j``.
+``c[i,0,k]`` (``i ≥ 0``, ``k < 0``)
+    Sphere expansions only: the U-channel pole row, coefficient of
+    ``s^i u^k`` with ``u = −s−t`` (as ``expand`` names it in tables, JSON
+    and CSV); 0 for an expansion without such rows.  Order ``i + k``.
 ``sym[i,j]`` (``i ≥ j ≥ 0``)
     The coefficient of the symmetric-basis element ``s^i t^j + s^j t^i``
     (``s^i t^i`` when ``i = j``), i.e. ``(c[i,j] + c[j,i])/2`` for

@@ -109,3 +109,16 @@ def test_fix_from_a_pole_table(tmp_path):
     res = run("fix", f, cs)
     assert res.exit_code == 0, res.output
     assert "b1 = 1" in res.output and "b2 = 0" in res.output
+
+
+def test_invented_pole_example_fixes_by_hand_values(tmp_path):
+    # examples/README.md §4: b1 + b2(1+T) = (T+3)/2 and no double pole (b3 = 0), by hand
+    from pathlib import Path
+
+    ex = Path(__file__).resolve().parents[2] / "examples"
+    fixed = tmp_path / "f.toml"
+    res = run("fix", ex / "sphere_pole_ansatz.toml", ex / "sphere_pole_constraints.toml", "--write", fixed)
+    assert res.exit_code == 0, res.output
+    assert "b1 = 1\n" in res.output and "b2 = 1/2\n" in res.output and "b3 = 0\n" in res.output
+    assert "further levels, not imposed (2): 2 passed, 0 failed" in res.output
+    assert run("check", fixed, ex / "sphere_pole_constraints.toml").exit_code == 0
