@@ -203,16 +203,34 @@ def _padd(target: Dict, key, value: MZV) -> None:
 
 
 def _taylor_shift(poly: Poly, index: int, point: Fraction) -> Dict[int, Poly]:
-    """``poly`` with variable ``index`` replaced by ``point + ε``: ``{r: coefficient of ε^r}``."""
-    out: Dict[int, Poly] = {}
+    """``poly`` with variable ``index`` replaced by ``point + ε``: ``{r: coefficient of ε^r}``.
+
+    Accumulated on the canonical monomials of the MZV coefficients with
+    python-flint rationals (one MZV built per output coefficient, not one
+    per product: high levels give polynomials of high degree).
+    """
+    acc: Dict[int, Dict[Tuple[int, ...], Dict[tuple, "flint.fmpq"]]] = {}
+    powers: Dict[int, "flint.fmpq"] = {}
     for key, value in poly.items():
         e = key[index]
         rest = key[:index] + (0,) + key[index + 1 :]
+        flat = [(mono, _q(q)) for mono, q in value.as_dict().items() if q]
         for r in range(e + 1):
-            factor = math.comb(e, r) * point ** (e - r)
-            if factor:
-                _padd(out.setdefault(r, {}), rest, value * factor)
-    return {r: p for r, p in out.items() if p}
+            if e - r not in powers:
+                powers[e - r] = _q(Fraction(point) ** (e - r))
+            factor = powers[e - r] * math.comb(e, r)
+            if not factor:
+                continue
+            slot = acc.setdefault(r, {}).setdefault(rest, {})
+            for mono, q in flat:
+                slot[mono] = slot[mono] + q * factor if mono in slot else q * factor
+    out: Dict[int, Poly] = {}
+    for r, by_rest in acc.items():
+        for rest, terms in by_rest.items():
+            value = _mzv_from_flat(terms)
+            if value:
+                out.setdefault(r, {})[rest] = value
+    return out
 
 
 def poly_text(

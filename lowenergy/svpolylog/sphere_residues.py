@@ -87,6 +87,8 @@ from fractions import Fraction
 from math import comb
 from typing import Dict, List, Optional, Tuple
 
+import flint
+
 from ..errors import InputError
 from ..integrand.model import Integrand, LinearExponent, Poly
 from ..spectrum.residues import (
@@ -94,6 +96,7 @@ from ..spectrum.residues import (
     ResidueTable,
     _binomial_series,
     _m_range,
+    _mzv_from_flat,
     _padd,
     g_series_at_zero,
     poles_from_expansions,
@@ -192,28 +195,39 @@ def _diagonal_expansions(words: Dict[Word, MZV], far_shift: int, far_coeff: Frac
                          order: int, nvars: int, store: TableStore) -> Dict[Tuple[int, int], Poly]:
     """``E_{N,k}`` for N ≤ order: the coefficient of ``|z|^(2N) log^k|z|²/k!`` in
     ``|1-z|^(2·far) Σ_u words[u] L_u(z)`` (step 2), full exponent keys."""
-    binom = _binomial_series(far_shift, far_coeff, order)
+    binom = [flint.fmpq_poly([flint.fmpq(c.numerator, c.denominator) for c in b])
+             for b in _binomial_series(far_shift, far_coeff, order)]
     series: Dict[Tuple[int, int, int], MZV] = {}
     for u, cu in words.items():
         for key, x in sv_series_at_zero(u, order, store).items():
             _padd(series, key, cu * x)
-    out: Dict[Tuple[int, int], Poly] = {}
+    # rational work in python-flint: acc[(n, k)][power][MZV monomial]
+    acc: Dict[Tuple[int, int], Dict[int, Dict[tuple, "flint.fmpq"]]] = {}
     for (p, q, k), x in series.items():
+        flat = [(mono, flint.fmpq(c.numerator, c.denominator)) for mono, c in x.as_dict().items() if c]
         for n in range(max(p, q), order + 1):
-            bp, bq = binom[n - p], binom[n - q]
-            for i, bi in enumerate(bp):
-                if not bi:
+            prod = binom[n - p] * binom[n - q]
+            by_power = acc.setdefault((n, k), {})
+            for power in range(prod.degree() + 1):
+                c = prod[power]
+                if not c:
                     continue
-                for j, bj in enumerate(bq):
-                    if not bj:
-                        continue
-                    key = [0] * nvars
-                    if far_var is not None:
-                        key[far_var] = i + j
-                    elif i + j:
-                        raise AssertionError("binomial series without variable has degree 0")
-                    _padd(out.setdefault((n, k), {}), tuple(key), x * (bi * bj))
-    return {key: poly for key, poly in out.items() if poly}
+                if far_var is None and power:
+                    raise AssertionError("binomial series without variable has degree 0")
+                slot = by_power.setdefault(power, {})
+                for mono, v in flat:
+                    slot[mono] = slot[mono] + v * c if mono in slot else v * c
+    out: Dict[Tuple[int, int], Poly] = {}
+    for nk, by_power in acc.items():
+        for power, terms in by_power.items():
+            value = _mzv_from_flat(terms)
+            if not value:
+                continue
+            key = [0] * nvars
+            if far_var is not None:
+                key[far_var] = power
+            out.setdefault(nk, {})[tuple(key)] = value
+    return out
 
 
 def _endpoint(coefficient: Poly, near: LinearExponent, far: LinearExponent, words: Dict[Word, MZV],
