@@ -219,7 +219,6 @@ def shifts(
     Exit 0: consistent; 1: a consistency residual is non-zero; 2: bad input.
     """
     from ..errors import InputError
-    from ..spectrum import residues
     from ..spectrum.shifts import plot_shifts, spectrum_shifts
 
     if len(files) < 2:
@@ -249,7 +248,9 @@ def shifts(
         if itg.parameters:
             raise InputError(f"free parameters {list(itg.parameters)}: the shifts need numbers", source=itg.source,
                              hint="give their values with --set NAME=VALUE (exact rationals)")
-    tables = [residues(itg, levels) for itg in integrands]
+    from ..cli import _residues_of  # interval or sphere
+
+    tables = [_residues_of(itg, levels) for itg in integrands]
     table = spectrum_shifts(tables, dimension, var=var, levels=range(1, levels + 1), digits=digits)
     if plot:
         plot_shifts(table, plot, offset=trajectory)

@@ -122,3 +122,21 @@ def test_invented_pole_example_fixes_by_hand_values(tmp_path):
     assert "b1 = 1\n" in res.output and "b2 = 1/2\n" in res.output and "b3 = 0\n" in res.output
     assert "further levels, not imposed (2): 2 passed, 0 failed" in res.output
     assert run("check", fixed, ex / "sphere_pole_constraints.toml").exit_code == 0
+
+
+def test_shifts_of_the_invented_sphere_family():
+    # |z|^(-2S/(1+εc)-2) has its S-poles at S = n(1 + εc), c = 1/2 (examples/shift_sphere_*.toml,
+    # invented): δ1 = n/2 and δ2 = 0 exactly, at every spin
+    from pathlib import Path
+
+    ex = Path(__file__).resolve().parents[2] / "examples"
+    res = run("shifts", ex / "shift_sphere_flat.toml", ex / "shift_sphere_first.toml",
+              ex / "shift_sphere_second.toml", "--levels", 2)
+    assert res.exit_code == 0, res.output
+    rows = [line.split() for line in res.output.splitlines() if line.strip()[:1].isdigit()]
+    assert len(rows) == 3 + 5
+    for row in rows:
+        level, delta1 = int(row[0]), row[3]
+        assert delta1 == {1: "1/2", 2: "1"}[level]
+        assert float(row[6]) == 0.0
+    assert "consistency residuals: all zero" in res.output
