@@ -249,8 +249,7 @@ class AnsatzSpec:
     def rule_text(self) -> str:
         rel = "=" if self.exact_degree else "<="
         form = {"fixed": f"{self.degree}", "falling": f"{self.degree} + {self.weight} - w", "rising": f"{self.degree} + w"}
-        v1, v2 = self.names[:2]
-        return f"{v1}^i {v2}^j: i + j {rel} {form[self.degree_rule]} (rule '{self.degree_rule}', w the total weight of c*F)"
+        return f"i + j {rel} {form[self.degree_rule]} (rule '{self.degree_rule}', w the total weight of c*F)"
 
     def command(self) -> str:
         """The command line that regenerates this ansatz."""
@@ -427,7 +426,7 @@ class Ansatz:
             f"integrand = {measure}{self.koba_nielsen()} * sum_k a_k * m_k({v1},{v2}) * c_k * F_k({x}), where",
             f"  F_k: {description}, total weight of c_k*F_k {weights};",
             f"  c_k: {constants};",
-            f"  m_k = {spec.rule_text()};",
+            f"  m_k = {v1}^i {v2}^j with {spec.rule_text()};",
             f"  symmetry: {sym}.",
             f"Independence: of {self.functions} candidate products c*F, {self.independent_functions} are linearly",
             "independent over Q (exact rank after splitting MZV coefficients by canonical basis element);",
