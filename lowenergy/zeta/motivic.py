@@ -44,9 +44,15 @@ from .reduction import Monomial, WeightTable, generator_preference, monomials_of
 
 __all__ = ["reduce_weight_motivic", "f_monomials", "SMALL_PRIMES"]
 
-# The eight largest primes below 2^26 (sympy.prevprime; checked in tests).
-# Entries stay below 2^26, so a dot product of up to 64 terms fits in int64.
-SMALL_PRIMES = (67108859, 67108837, 67108819, 67108777, 67108763, 67108757, 67108753, 67108747)
+#: The sixteen largest primes below 2^26, largest first (sympy.prevprime;
+#: checked in tests).  Entries stay below 2^26, so a dot product of up to 64
+#: terms fits in int64.  A weight uses the fewest primes that make the
+#: rational reconstruction stable (confirmed by one more).  Eight sufficed up
+#: to weight 18; at weight 19 reconstruction failed with eight (measured).
+SMALL_PRIMES = (
+    67108859, 67108837, 67108819, 67108777, 67108763, 67108757, 67108753, 67108747,
+    67108739, 67108729, 67108721, 67108709, 67108693, 67108669, 67108667, 67108661,
+)
 
 
 def f_monomials(weight: int) -> List[FKey]:
