@@ -740,7 +740,7 @@ class CheckReport:
         """A plain-text report: one line per constraint, details for those
         that did not pass (for all with ``verbose``), then a summary."""
         lines = []
-        head = self.title or self.constraints_source or "constraints"
+        head = self.title or self.constraints_source or "(untitled)"
         lines.append(f"constraints: {head}")
         if self.provenance:
             lines.append(f"source: {self.provenance}")
