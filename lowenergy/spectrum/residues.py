@@ -502,6 +502,27 @@ class ResidueTable:
 _RESIDUE_COLUMNS = ["variable", "location", "order", "power", "param", "exact", "numeric"]
 
 
+def group_pole_numerators(raw: Dict, other_of) -> Dict:
+    """``{place: {order m: {(i, j, params...): value}}}`` → ``{place: {m:
+    {power of the other variable: {params: value}}}}``: the numerator of
+    each pole as a polynomial in the other variable (index ``other_of(place)``
+    of the key), dropping zeros and empty orders and places."""
+    poles: Dict = {}
+    for place, orders in raw.items():
+        other = other_of(place)
+        conv: Dict[int, ResiduePoly] = {}
+        for m, poly in orders.items():
+            rp: ResiduePoly = {}
+            for key, value in poly.items():
+                if value:
+                    rp.setdefault(key[other], {})[tuple(key[2:])] = value
+            if rp:
+                conv[m] = rp
+        if conv:
+            poles[place] = conv
+    return poles
+
+
 def _param_text(pkey: Tuple[int, ...], names: Sequence[str]) -> str:
     parts = [n if e == 1 else f"{n}^{e}" for n, e in zip(names, pkey) if e]
     return "*".join(parts) or "1"
@@ -857,19 +878,7 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
             endpoint(term.coefficient, term.y_exp, term.x_exp, flipped)
         except InputError as err:
             raise err.located(source=integrand.source, line=term.source_line, term=term.text)
-    poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]] = {}
-    for (v, p), orders in raw.items():
-        other = 1 - v
-        conv: Dict[int, ResiduePoly] = {}
-        for m, poly in orders.items():
-            rp: ResiduePoly = {}
-            for key, value in poly.items():
-                if value:
-                    rp.setdefault(key[other], {})[tuple(key[2:])] = value
-            if rp:
-                conv[m] = rp
-        if conv:
-            poles[(v, p)] = conv
+    poles: Dict[Tuple[int, Fraction], Dict[int, ResiduePoly]] = group_pole_numerators(raw, lambda place: 1 - place[0])
     for place, orders in flat.items():
         for j, entries in orders.items():
             grouped: Dict[Tuple[int, Tuple[int, ...]], Dict[tuple, Fraction]] = {}

@@ -85,20 +85,20 @@ from __future__ import annotations
 
 from fractions import Fraction
 from math import comb
-from typing import Dict, List, Optional, Tuple
+from typing import Dict, Optional, Tuple
 
 import flint
 
 from ..errors import InputError
 from ..integrand.model import Integrand, LinearExponent, Poly
 from ..spectrum.residues import (
-    ResiduePoly,
     ResidueTable,
     _binomial_series,
     _m_range,
     _mzv_from_flat,
     _padd,
     g_series_at_zero,
+    group_pole_numerators,
     poles_from_expansions,
 )
 from ..zeta.element import MZV
@@ -252,23 +252,6 @@ def _to_su(poly: Poly) -> Poly:
     return out
 
 
-def _convert(raw, other_of) -> Dict:
-    poles: Dict = {}
-    for place, orders in raw.items():
-        other = other_of(place)
-        conv: Dict[int, ResiduePoly] = {}
-        for m, poly in orders.items():
-            rp: ResiduePoly = {}
-            for key, value in poly.items():
-                if value:
-                    rp.setdefault(key[other], {})[tuple(key[2:])] = value
-            if rp:
-                conv[m] = rp
-        if conv:
-            poles[place] = conv
-    return poles
-
-
 def sphere_residues(integrand: Integrand, levels: int, *, store: TableStore | None = None,
                     method: str = "direct") -> ResidueTable:
     """Exact pole parts of a sphere integral at ``S = p``, ``T = p`` and ``U = p``, ``|p| ≤ levels``.
@@ -344,8 +327,8 @@ def sphere_residues(integrand: Integrand, levels: int, *, store: TableStore | No
                 _endpoint(term.coefficient, near, b_exp, at_inf, levels, nvars, store, raw)
         except InputError as err:
             raise err.located(source=integrand.source, line=term.source_line, term=term.text)
-    poles = _convert(raw, lambda place: 1 - place[0])
-    upoles = {p: orders for (_v, p), orders in _convert(uraw, lambda place: 0).items()}
+    poles = group_pole_numerators(raw, lambda place: 1 - place[0])
+    upoles = {p: orders for (_v, p), orders in group_pole_numerators(uraw, lambda place: 0).items()}
     return ResidueTable(
         variables=tuple(integrand.variables),
         parameters=tuple(integrand.parameters),
