@@ -917,7 +917,33 @@ def demo() -> None:
     from .zeta.falphabet import f_to_text
     from .zeta.table import default_store
 
+    import re
+    import shutil
+    import textwrap
+
     default_store().ensure(12)  # built on first use, reported on stderr
+    width = max(60, shutil.get_terminal_size((80, 24)).columns)
+
+    def say(line: str, indent: int) -> None:
+        """Echo ``line`` wrapped to the terminal width, continuation lines
+        indented by ``indent``; sums break before a `` + `` or `` - `` so that
+        every continuation line starts with its sign."""
+        chunks = re.split(r" (?=[+-] )", line)
+        if len(chunks) == 1:
+            typer.echo(textwrap.fill(line, width=width, subsequent_indent=" " * indent,
+                                     break_long_words=False, break_on_hyphens=False))
+            return
+        out = chunks[0]
+        current = len(out)
+        for chunk in chunks[1:]:
+            if current + 1 + len(chunk) > width:
+                out += "\n" + " " * indent + chunk
+                current = indent + len(chunk)
+            else:
+                out += " " + chunk
+                current += 1 + len(chunk)
+        typer.echo(out)
+
     typer.echo("\n1. Canonical MZV reductions (first index on the largest summation variable):")
     # each line must say something: an input that is already canonical would
     # print as "x = x", which is no identity, so it is labelled instead
@@ -926,16 +952,16 @@ def demo() -> None:
         if value.to_text().replace(" ", "") == text.replace(" ", ""):
             typer.echo(f"   {text:28s}   (already canonical: a basis element)")
         else:
-            typer.echo(f"   {text:28s} = {value}")
-        typer.echo(f"   {'':28s}   f-alphabet: {f_to_text(value.f_alphabet())}")
+            say(f"   {text:28s} = {value}", 34)
+        say(f"   {'':28s}   f-alphabet: {f_to_text(value.f_alphabet())}", 46)
     typer.echo("\n2. The open-superstring factor x^(-s-1)(1-x)^(-t) expanded to order 4:")
     integrand = integrand_from_text(
         'title = "open superstring"\nintegrand = "x^(-s-1)*(1-x)^(-t)"\n', source="<demo>"
     )
     expansion = run_expand(integrand, 4)
     Console().print(to_terminal(expansion, digits=12))
-    typer.echo("3. Checked against values from the Gamma-function closed form Γ(-s)Γ(1-t)/Γ(1-s-t)")
-    typer.echo("   (Abramowitz & Stegun 6.1.33):")
+    typer.echo("3. Checked against values from the Gamma-function closed form")
+    typer.echo("   Γ(-s)Γ(1-t)/Γ(1-s-t) (Abramowitz & Stegun 6.1.33):")
     cs = constraints_from_text(
         'source = "A&S 6.1.33, expanded by hand"\n'
         '[[constraint]]\nname = "c[0,1]"\nrelation = "c[0,1]"\nkind = "="\nrhs = "pi^2/6"\n'
@@ -944,7 +970,8 @@ def demo() -> None:
         source="<demo>",
     )
     report = run_check(expansion, cs)
-    typer.echo("   " + report.to_text().replace("\n", "\n   "))
+    for line in report.to_text().splitlines():
+        say("   " + line, 5)
     typer.echo("\nNext: lowenergy --help, README.md, examples/README.md")
 
 

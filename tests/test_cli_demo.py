@@ -19,3 +19,13 @@ def test_demo_prints_no_tautology():
     # ζ(5,7) is not a basis element at weight 12: it reduces through ζ(3,9) (Gangl, Kaneko,
     # Zagier 2006 relation; README "Conventions"), so it prints as a real identity
     assert any(left == "zeta(5,7)" and "zeta(3,9)" in right for left, right in pairs)
+
+
+def test_demo_fits_an_80_column_terminal(monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")
+    res = CliRunner().invoke(app, ["demo"])
+    assert res.exit_code == 0, res.stderr
+    long = [line for line in res.stdout.splitlines() if len(line) > 80]
+    assert not long, long
+    # the wrapped reduction of zeta(5,7) is still all there
+    assert "820448/1576575*zeta(2)^6" in res.stdout
