@@ -44,7 +44,7 @@ from ..errors import InputError
 from ..integrand.model import Integrand, LinearExponent, Term
 from ..zeta.element import MZV, g_value
 from ..zeta.table import TableStore, default_store
-from .result import Expansion
+from .result import Expansion, add_term
 from .values import word_index, word_values
 
 __all__ = [
@@ -452,22 +452,7 @@ def expand_termwise(
                 ii, jj = i + key[0], j + key[1]
                 if ii + jj > order:
                     continue
-                pkey = tuple(key[2 : 2 + nparams])
-                slot = result.setdefault((ii, jj), {})
-                y = slot.get(pkey, MZV()) + value * coef
-                if y:
-                    slot[pkey] = y
-                else:
-                    slot.pop(pkey, None)
-                    if not slot:
-                        del result[(ii, jj)]
+                add_term(result, (ii, jj), tuple(key[2 : 2 + nparams]), value * coef)
         if progress:
             progress(f"term {index + 1}/{len(terms)}")
-    return Expansion(
-        variables=tuple(integrand.variables),
-        parameters=tuple(integrand.parameters),
-        order=order,
-        coefficients=result,
-        title=integrand.title,
-        source=integrand.source,
-    )
+    return Expansion.of_integrand(integrand, order, result)

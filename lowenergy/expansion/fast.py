@@ -416,11 +416,4 @@ def expand_bulk(
         terms_ = {monos[col]: fraction(y) for col, y in acc[(ij, pi)].items() if y}
         if terms_:
             result.setdefault(ij, {})[pkeys[pi]] = MZV.from_canonical(terms_)
-    return Expansion(
-        variables=tuple(integrand.variables),
-        parameters=tuple(integrand.parameters),
-        order=order,
-        coefficients=result,
-        title=integrand.title,
-        source=integrand.source,
-    )
+    return Expansion.of_integrand(integrand, order, result)

@@ -22,7 +22,7 @@ from typing import Dict, Iterator, Tuple
 from ..zeta.element import MZV
 from ..zeta.format import join_terms
 
-__all__ = ["Expansion", "ParamPoly", "u_pole_name"]
+__all__ = ["Expansion", "ParamPoly", "u_pole_name", "add_term"]
 
 ParamPoly = Dict[Tuple[int, ...], MZV]
 
@@ -59,6 +59,20 @@ class Expansion:
     meta: dict = field(default_factory=dict)
     u_poles: Dict[Tuple[int, int], ParamPoly] = field(default_factory=dict)
     domain: str = "interval"
+
+    @classmethod
+    def of_integrand(cls, integrand, order: int, coefficients: Dict, **extra) -> "Expansion":
+        """The expansion of ``integrand`` to ``order`` with these coefficients;
+        variables, parameters, title and source come from the integrand."""
+        return cls(
+            variables=tuple(integrand.variables),
+            parameters=tuple(integrand.parameters),
+            order=order,
+            coefficients=coefficients,
+            title=integrand.title,
+            source=integrand.source,
+            **extra,
+        )
 
     def coefficient(self, i: int, j: int):
         """Coefficient of s^i t^j.
@@ -185,3 +199,16 @@ def u_pole_name(i: int, k: int) -> str:
     'c[0,0,-1]'
     """
     return f"c[{i},0,{k}]"
+
+
+def add_term(target: Dict, key: Tuple[int, int], pkey: Tuple[int, ...], value: MZV) -> None:
+    """Add ``value`` to ``target[key][pkey]`` (coefficients keyed by powers and
+    parameter monomial), dropping entries and slots that become zero."""
+    slot = target.setdefault(key, {})
+    y = slot.get(pkey, MZV()) + value
+    if y:
+        slot[pkey] = y
+    else:
+        slot.pop(pkey, None)
+        if not slot:
+            del target[key]

@@ -90,13 +90,12 @@ Examples
 from __future__ import annotations
 
 from fractions import Fraction
-from functools import lru_cache
 from math import comb
 from typing import Callable, Dict, List, Optional, Tuple
 
 from ..errors import InputError
 from ..expansion.engine import embeddings, raw_series, words_with_counts
-from ..expansion.result import Expansion
+from ..expansion.result import Expansion, add_term
 from ..integrand.model import Integrand, LinearExponent, Term
 from ..zeta.element import MZV, g_value
 from ..zeta.table import TableStore, default_store
@@ -413,16 +412,6 @@ def expand_sphere(
     result: Dict[Tuple[int, int], Dict[Tuple[int, ...], MZV]] = {}
     upoles: Dict[Tuple[int, int], Dict[Tuple[int, ...], MZV]] = {}
 
-    def put(target, key, pkey, value) -> None:
-        slot = target.setdefault(key, {})
-        y = slot.get(pkey, MZV()) + value
-        if y:
-            slot[pkey] = y
-        else:
-            slot.pop(pkey, None)
-            if not slot:
-                del target[key]
-
     terms: List[Term] = list(integrand.terms)
     for index, term in enumerate(terms):
         if not term.coefficient:
@@ -440,23 +429,14 @@ def expand_sphere(
                 ii, jj = i + key[0], j + key[1]
                 if ii + jj > order:
                     continue
-                put(result, (ii, jj), tuple(key[2 : 2 + nparams]), value * coef)
+                add_term(result, (ii, jj), tuple(key[2 : 2 + nparams]), value * coef)
         for (i, k), value in up.items():
             for key, coef in term.coefficient.items():
                 pkey = tuple(key[2 : 2 + nparams])
                 for (kind, x, y), q in _u_rewrite((key[0] + i, key[1]), k).items():
                     if x + y > order:
                         continue
-                    put(upoles if kind == "u" else result, (x, y), pkey, value * coef * q)
+                    add_term(upoles if kind == "u" else result, (x, y), pkey, value * coef * q)
         if progress:
             progress(f"term {index + 1}/{len(terms)}")
-    return Expansion(
-        variables=tuple(integrand.variables),
-        parameters=tuple(integrand.parameters),
-        order=order,
-        coefficients=result,
-        title=integrand.title,
-        source=integrand.source,
-        u_poles=upoles,
-        domain="sphere",
-    )
+    return Expansion.of_integrand(integrand, order, result, u_poles=upoles, domain="sphere")
