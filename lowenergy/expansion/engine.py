@@ -428,11 +428,10 @@ def expand_termwise(
             f"{integrand.source} is a {integrand.domain} integrand; this engine expands interval integrands",
             hint="use lowenergy.svpolylog.sphere.expand_sphere (the command line chooses it by itself)",
         )
-    from ..zeta.table import default_store
-
+    store = store or default_store()
     # refuse an order beyond the buildable tables before any work, then build
     # the missing tables in one go (reported as the store's module describes)
-    default_store().ensure(check_order(integrand, order))
+    store.ensure(check_order(integrand, order))
     nparams = len(integrand.parameters)
     result: Dict[Tuple[int, int], Dict[Tuple[int, ...], MZV]] = {}
     terms: List[Term] = list(integrand.terms)
