@@ -633,29 +633,32 @@ def _endpoint_poles(
         m_values = _m_range(near.shift, near.coeff, levels)
     if not m_values:
         return
-    order = m_values[-1]
-    binom = _binomial_series(far.shift, far.coeff, order)
     # E_{m,k}(z) = Σ_u c_u Σ_{m'} binom_{m'}(z) g^u_{k, m-m'}: rational work first,
     # one multiplication by the MZV c_u per (u, m, k).
     expansions: Dict[Tuple[int, int], Poly] = {}
+    for _u, cu, m, k, power, value in _endpoint_terms(words, far, m_values):
+        key = [0] * nvars
+        if far.var is not None:
+            key[far.var] = power
+        _padd(expansions.setdefault((m, k), {}), tuple(key), cu * value)
+    poles_from_expansions(coefficient, near, expansions, levels, out)
+
+
+def _endpoint_terms(words: Dict[Tuple[int, ...], MZV], far, m_values: range):
+    """The non-zero rational pieces of the end-point expansions E_{m,k}:
+    ``(u, c_u, m, k, power of the far variable, value)`` for every word u with
+    coefficient c_u, from the convolution of u's series at 0 with the
+    binomial series of the far factor (shared by both end-point paths)."""
+    binom = _binomial_series(far.shift, far.coeff, m_values[-1])
     for u, cu in words.items():
-        series = g_series_at_zero(u, order)
-        for k, g in series.items():
+        for k, g in g_series_at_zero(u, m_values[-1]).items():
             for m in m_values:
-                acc = _convolve(g, binom, m)
-                if not any(acc):
-                    continue
-                slot = expansions.setdefault((m, k), {})
-                for power, value in enumerate(acc):
+                for power, value in enumerate(_convolve(g, binom, m)):
                     if not value:
                         continue
-                    key = [0] * nvars
-                    if far.var is not None:
-                        key[far.var] = power
-                    elif power:
+                    if far.var is None and power:
                         raise AssertionError("binomial series without variable has degree 0")
-                    _padd(slot, tuple(key), cu * value)
-    poles_from_expansions(coefficient, near, expansions, levels, out)
+                    yield u, cu, m, k, power, value
 
 
 def poles_from_expansions(
@@ -743,27 +746,14 @@ def _endpoint_poles_flat(
     m_values = _m_range(near.shift, near.coeff, levels)
     if not m_values:
         return
-    order = m_values[-1]
-    binom = _binomial_series(far.shift, far.coeff, order)
     # E_{m,k}: {(power of the far variable, monomial): q}
     expansions: Dict[Tuple[int, int], Dict[Tuple[int, tuple], Fraction]] = {}
-    for u, cu in words.items():
-        cflat = list(cu.as_dict().items())
-        series = g_series_at_zero(u, order)
-        for k, g in series.items():
-            for m in m_values:
-                acc = _convolve(g, binom, m)
-                if not any(acc):
-                    continue
-                slot = expansions.setdefault((m, k), {})
-                for power, value in enumerate(acc):
-                    if not value:
-                        continue
-                    if far.var is None and power:
-                        raise AssertionError("binomial series without variable has degree 0")
-                    for mono, q in cflat:
-                        key = (power, mono)
-                        slot[key] = slot.get(key, Fraction(0)) + value * q
+    flat = {u: list(cu.as_dict().items()) for u, cu in words.items()}
+    for u, _cu, m, k, power, value in _endpoint_terms(words, far, m_values):
+        slot = expansions.setdefault((m, k), {})
+        for mono, q in flat[u]:
+            key = (power, mono)
+            slot[key] = slot.get(key, Fraction(0)) + value * q
     c = near.coeff
     v = near.var
     o = 1 - v
