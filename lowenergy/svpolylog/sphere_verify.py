@@ -56,6 +56,24 @@ def _de_nodes(h: mpmath.mpf, tmax: float, a, b) -> List[Tuple[mpmath.mpf, mpmath
     return out
 
 
+def _log_moduli(w: mpmath.mpc, piece: int) -> Tuple[mpmath.mpf, mpmath.mpf]:
+    """``(log|z|², log|1-z|²)`` at ``z = (w, 1 - w, 1/w)[piece]``, from ``|w|``
+    and ``|1 - w|`` only.
+
+    Forming ``z = 1 - w`` first and then ``1 - z`` loses ``Re w`` once
+    ``|w|`` is below the working precision (the nodes reach ``|w| ~ 1e-300``),
+    leaving ``|1 - z| = |Im w|``; near ``θ = 0`` that was wrong by the factor
+    ``sin(θ)^(2B)`` and ruined the integral at small ``|T|``.
+    """
+    a = 2 * mpmath.log(abs(w))
+    b = 2 * mpmath.log(abs(1 - w))
+    if piece == 0:
+        return a, b
+    if piece == 1:
+        return b, a
+    return -a, b - a
+
+
 class _LValues:
     """``L_w`` at the images ``w``, ``1 - w``, ``1/w`` of a node ``w ∈ R0``."""
 
@@ -68,9 +86,7 @@ class _LValues:
     def at(self, w: mpmath.mpc, piece: int) -> Dict[Word, mpmath.mpc]:
         """``L_v(z)`` for all words, ``z = (w, 1 - w, 1/w)[piece]``;
         ``L_v(z̄) = conj L_v(z)``."""
-        z = (w, 1 - w, 1 / w)[piece]
-        l0 = 2 * mpmath.log(abs(z))
-        l1 = 2 * mpmath.log(abs(1 - z))
+        l0, l1 = _log_moduli(w, piece)
         out: Dict[Word, mpmath.mpc] = {}
         if self.plane is not None:
             out.update(self.plane.images(w, self.genuine, which=(piece,))[piece])
@@ -108,9 +124,8 @@ def sphere_integral(integrand: Integrand, point: Mapping, digits: int = 12, leve
 
         def g_pair(w, piece):
             """g(z) + g(z̄) at z = (w, 1 - w, 1/w)[piece]."""
-            z = (w, 1 - w, 1 / w)[piece]
             L = lv.at(w, piece)
-            l0, l1 = 2 * mpmath.log(abs(z)), 2 * mpmath.log(abs(1 - z))
+            l0, l1 = _log_moduli(w, piece)
             tot = mpmath.mpc(0)
             for c, A, B, word in terms:
                 f = mpmath.exp(A * l0 + B * l1)
