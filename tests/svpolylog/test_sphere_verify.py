@@ -49,3 +49,18 @@ def test_log_insertion_at_small_S_T():
         exact = mpmath.diff(lambda a: complex_beta(a, -T), -S) / 2      # log|z| = L_0 / 2
         value, err, _ = sphere_integral(integrand, {"S": S, "T": T}, digits=12, level=3)
         assert abs(value - exact) < 1e-8 * abs(exact)
+
+
+def test_depth_two_words_at_small_S_T():
+    # L_01 + L_10 = L_0 ш L_1 = log|z|² log|1-z|² (shuffle product of the
+    # single-valued polylogs), so the integral is ∂_a ∂_b C(a, b), a = -S, b = -T.
+    # At this point the radial map r = ρ u^(1/α) gave the error estimate 9e-4.
+    integrand = integrand_from_text(
+        HEAD + 'integrand = "abs(z)^(-2*S-2)*abs(1-z)^(-2*T-2)*(svpolylog(0,1; z)+svpolylog(1,0; z))"\n',
+        source="l01.toml")
+    with mpmath.workdps(30):
+        S, T = mpmath.mpf("-0.02"), mpmath.mpf("-0.03")
+        exact = mpmath.diff(complex_beta, (-S, -T), (1, 1))
+        value, err, _ = sphere_integral(integrand, {"S": S, "T": T}, digits=12, level=3)
+        assert abs(value - exact) < 1e-11 * abs(exact)
+        assert err < 1e-5 * abs(exact)
