@@ -692,7 +692,11 @@ def _pole_table(integrand_or_source, sets):
         from .integrand.reader import read_integrand
 
         integrand_or_source = read_integrand(integrand_or_source)
-    return _residues_of(integrand_or_source, need)
+    table = _residues_of(integrand_or_source, need)
+    from .constraints.poles import refuse_u_tables
+
+    refuse_u_tables([p for cs in sets for p in cs.poles], table)  # before any expansion work
+    return table
 
 
 def _residues_of(integrand, levels: int):

@@ -655,15 +655,18 @@ def _suggest_residues(poles, affine: AffineMap, n: int, params: Sequence[str], n
     labels: List[str] = []
     owner: List[int] = []
     raw_rows: List[Dict[int, Fraction]] = []
-    for (v, p) in sorted(poles.poles, key=lambda k: (abs(k[1]), k[0])):
-        for k in sorted(poles.poles[(v, p)], reverse=True):
-            for power in sorted(poles.poles[(v, p)][k]):
-                pp = poles.poles[(v, p)][k][power]
+    # poles in s, t, then (sphere integrands) in u = -s-t with numerators in s: v = 2
+    places = {key: orders for key, orders in poles.poles.items()}
+    places.update({(2, p): orders for p, orders in (getattr(poles, "u_poles", None) or {}).items()})
+    for (v, p) in sorted(places, key=lambda k: (abs(k[1]), k[0])):
+        for k in sorted(places[(v, p)], reverse=True):
+            for power in sorted(places[(v, p)][k]):
+                pp = places[(v, p)][k][power]
                 cond = Condition("", "", "pole", None, None, [("", pp)])
                 rows = [r for r in _pole_rows(cond, n, params) if any(c != n for c in r)]
                 if not rows:
                     continue
-                var, other = ("s", "t") if v == 0 else ("t", "s")
+                var, other = ("s", "t") if v == 0 else (("t", "s") if v == 1 else ("u", "s"))
                 mono = "1" if power == 0 else (other if power == 1 else f"{other}^{power}")
                 labels.append(f"numerator of 1/({var}-{fraction_text(p)})^{k}, coefficient of {mono}")
                 for r in rows:

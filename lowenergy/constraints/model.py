@@ -83,7 +83,18 @@ polynomials in the other variable; ``R_1`` is the residue, with no sign
 flipped: for ``B(−s,−t) = ∫ x^(−s−1)(1−x)^(−t−1) dx`` it is
 ``−(t+1)⋯(t+n)/n!``.  Keys:
 
-``variable`` (required) -- ``"s"`` (poles at s = n, numerators in t) or ``"t"``.
+``variable`` (required) -- ``"s"`` (poles at s = n, numerators in t), ``"t"``
+    (poles at t = n, numerators in s) or, for sphere integrands only,
+    ``"u"``: poles at ``u = n`` with ``u = −s−t`` (from z → ∞), numerators
+    polynomials in **s** -- ``Σ_k R_k(s)/(u−n)^k`` is the Laurent expansion
+    in u at fixed s, the form in which ``residues`` prints the U rows (a
+    pole of a closed-string amplitude at fixed u = n, its numerator as a
+    polynomial in the momentum transfer s of that channel).  Constraint
+    files always write the
+    variables in lower case (``s``, ``t``, ``u``), whatever an integrand file
+    calls them (``S``, ``T``): the first variable is ``s``, the second ``t``.
+    A ``"u"`` table with an integrand over 0 < x < 1 (no poles in u) is
+    refused.
 ``levels`` (required) -- a list of distinct integers ``0 ≤ n ≤ 200``: the
     levels imposed.
 ``max_order`` (required) -- an integer ≥ 0: no ``1/(s−n)^k`` with
@@ -105,7 +116,14 @@ flipped: for ``B(−s,−t) = ∫ x^(−s−1)(1−x)^(−t−1) dx`` it is
     imposed (default: the three levels after the largest of ``levels``);
     ``fix`` reports them as the check that the solution also meets levels
     it was not asked to.
-``name`` (optional; default ``"pole s"``, numbered when needed), ``note``.
+``name`` (optional; default ``"pole s"``, ``"pole t"`` or ``"pole u"``,
+    numbered when needed), ``note``.
+
+For example the complex Beta function
+``(1/π)∫ d²z |z|^(−2S−2)|1−z|^(−2T−2) = Γ(−S)Γ(−T)Γ(1−U)/(Γ(1+S)Γ(1+T)Γ(U))``
+has at ``U = 1`` the simple pole ``−1/(U−1)`` and at ``U = 2`` the residue
+``−(s+1)²`` (numerator in s at fixed s), written
+``variable = "u"``, ``residues = { 1 = "-1", 2 = "-(s+1)^2" }``.
 
 Crossing, ``[crossing]`` (one table; ``crossing = "symmetric"`` is short for
 a table with only ``symmetry``):
@@ -205,6 +223,7 @@ __all__ = [
     "PoleConstraint",
     "CrossingConstraint",
     "POLE_KEYS",
+    "POLE_VARIABLES",
     "CROSSING_KEYS",
     "SYMMETRIES",
     "pole_levels_needed",
@@ -223,6 +242,8 @@ TOP_LEVEL_KEYS = ("title", "source", "notes", "template", "constraint", "pole", 
 #: Keys allowed in a ``[[pole]]`` table.
 POLE_KEYS = ("name", "variable", "levels", "max_order", "max_degree", "residues", "pole_order",
              "check_levels", "note")
+#: Values of ``variable`` in a ``[[pole]]`` table (``u = -s-t``: sphere integrands only).
+POLE_VARIABLES = ("s", "t", "u")
 #: Keys allowed in the ``[crossing]`` table.
 CROSSING_KEYS = ("name", "symmetry", "order", "levels", "check_levels", "note")
 #: The crossing symmetries and their signs.
@@ -400,7 +421,9 @@ class PoleConstraint:
         From the file, or ``"pole s"`` / ``"pole t"`` (numbered when a file
         has several tables of one variable).
     variable:
-        ``"s"`` (poles at s = n, numerators polynomials in t) or ``"t"``.
+        ``"s"`` (poles at s = n, numerators polynomials in t), ``"t"`` or
+        ``"u"`` (sphere integrands: poles at u = −s−t = n, numerators
+        polynomials in s, Laurent expansion in u at fixed s).
     levels, check_levels:
         The levels n imposed, and those only checked afterwards.
     max_order:
@@ -432,12 +455,12 @@ class PoleConstraint:
 
     @property
     def var_index(self) -> int:
-        """0 for s, 1 for t (the position of the variable in the integrand)."""
-        return 0 if self.variable == "s" else 1
+        """0 for s, 1 for t (the position of the variable in the integrand), 2 for u."""
+        return POLE_VARIABLES.index(self.variable)
 
     @property
     def other(self) -> str:
-        """The variable of the numerators."""
+        """The variable of the numerators (s for poles in u)."""
         return "t" if self.variable == "s" else "s"
 
     def degree_at(self, level: int) -> Optional[int]:
@@ -745,7 +768,7 @@ def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) ->
             "unclosed '[' in a coefficient reference",
             column=bracket + 1,
             term=term,
-            hint="write c[i,j] with two integers, e.g. c[2,0]",
+            hint=_ref_hint(family, text[bracket + 1 : (stop if stop >= 0 else n)]),
         )
     term = text[start : close + 1]
     if family not in FAMILIES:
@@ -768,7 +791,7 @@ def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) ->
             f"malformed coefficient reference '{_short(term, 40)}'",
             column=start + 1,
             term=_short(term),
-            hint=f"write {family}[i,j] with two integers, e.g. {family}[2,0]",
+            hint=_ref_hint(family, inner),
         )
     if len(m.group(2)) > 6 or len(m.group(4)) > 6:
         raise InputError(
@@ -796,6 +819,19 @@ def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) ->
     end = close + 1
     ref = CoefficientRef(family, a, b, column=start + 1, placeholder=_placeholder(index, end - start), text=term)
     return ref, end
+
+
+def _ref_hint(family: str, inner: str) -> str:
+    """The hint for a malformed ``family[inner]``: c[i,j], or the U-channel rows
+    c[i,0,k] of sphere expansions when three indices were meant."""
+    if family not in FAMILIES:
+        family = "c"
+    if family != "c":
+        return f"write {family}[i,j] with two integers, e.g. {family}[2,0]"
+    u_row = "c[i,0,k] with integers i >= 0, k < 0 (coefficient of s^i U^k, U = -s-t; sphere expansions)"
+    if inner.count(",") >= 2:
+        return f"a U-channel pole row is {u_row}, e.g. c[1,0,-1]; other coefficients are c[i,j], e.g. c[2,0]"
+    return "write c[i,j] with two integers, e.g. c[2,0] (U-channel pole rows of sphere expansions: c[i,0,k], k < 0)"
 
 
 def _read_u_ref(m, family: str, term: str, text: str, start: int, close: int,
@@ -1213,7 +1249,7 @@ class _Reader:
         out: List[PoleConstraint] = []
         counts: Dict[str, int] = {}
         for table in tables:
-            if isinstance(table, dict) and table.get("variable") in ("s", "t"):
+            if isinstance(table, dict) and table.get("variable") in POLE_VARIABLES:
                 counts[table["variable"]] = counts.get(table["variable"], 0) + 1
         seen: Dict[str, Optional[int]] = {}
         numbers: Dict[str, int] = {}
@@ -1273,11 +1309,14 @@ class _Reader:
                 raise self.error(InputError, f"missing required key '{key}'{label}", line, key,
                                  hint=_POLE_REQUIRED_HINTS[key])
         variable = table["variable"]
-        if variable not in ("s", "t"):
+        if variable not in POLE_VARIABLES:
             shown = repr(variable) if isinstance(variable, str) else tomlpos.toml_type(variable)
-            raise self.error(InputError, f"'variable' must be \"s\" or \"t\", not {_short(shown, 30)}{label}",
-                             where["variable"], "variable",
-                             hint='poles at s = n: variable = "s"; at t = n: variable = "t"')
+            hint = 'poles at s = n: variable = "s"; at t = n: "t"; at u = -s-t = n (sphere integrands): "u"'
+            if isinstance(variable, str) and variable.lower() in POLE_VARIABLES:
+                hint = (f'constraint files name the variables in lower case whatever the integrand calls them: '
+                        f'variable = "{variable.lower()}"')
+            raise self.error(InputError, f"'variable' must be \"s\", \"t\" or \"u\", not {_short(shown, 30)}{label}",
+                             where["variable"], "variable", hint=hint)
         other = "t" if variable == "s" else "s"
         if "name" in table:
             name = table["name"]
@@ -1341,7 +1380,7 @@ class _Reader:
                 flat = text.replace("\r", " ").replace("\n", " ")
                 try:
                     tree = parse_expression(flat)
-                    _validate_numerator(tree, other)
+                    _validate_numerator(tree, other, variable)
                 except LowEnergyError as err:
                     col = err.column
                     err.source, err.line, err.column = self.source, rline, None
@@ -1492,7 +1531,7 @@ class _Reader:
 
 
 _POLE_REQUIRED_HINTS = {
-    "variable": 'add variable = "s" (poles at s = n) or "t"',
+    "variable": 'add variable = "s" (poles at s = n), "t" or "u" (u = -s-t, sphere integrands)',
     "levels": "add levels = [0, 1, 2] (the levels n imposed)",
     "max_order": "add max_order = 1 (no 1/(s-n)^k with k > max_order)",
 }
@@ -1582,7 +1621,7 @@ def _linear_in_n(tree: Node) -> Tuple[Fraction, Fraction]:
     return fold(tree, leaf, inner)
 
 
-def _validate_numerator(tree: Node, other: str) -> None:
+def _validate_numerator(tree: Node, other: str, variable: Optional[str] = None) -> None:
     """Static checks of a pole numerator: a polynomial in ``other`` with MZV
     coefficients (``zeta(...)``, ``G(...; 1)``, ``pi``), divisions by
     rational numbers, non-negative integer powers of the variable."""
@@ -1595,8 +1634,9 @@ def _validate_numerator(tree: Node, other: str) -> None:
             if node.name in (other, "pi"):
                 continue
             hint = f"a numerator is a polynomial in {other} with MZV coefficients"
-            if node.name in ("s", "t"):
-                hint = f"the numerator of a pole in {'s' if other == 't' else 't'} is a polynomial in {other} only"
+            if node.name in POLE_VARIABLES:
+                pole_var = variable or ("s" if other == "t" else "t")
+                hint = f"the numerator of a pole in {pole_var} is a polynomial in {other} only"
             raise fail(node, f"unknown name '{_short(node.name, 30)}'", hint)
         if isinstance(node, Call):
             _validate_call(node, (), fail)

@@ -20,7 +20,13 @@ This module does not compute pole parts itself: it reads them from a *pole
 table*, any object with the attributes of
 :class:`lowenergy.spectrum.residues.ResidueTable` (``poles``, ``levels``,
 ``parameters``), as plain data: ``poles[(v, Fraction(n))] = {k: {power:
-{parameter exponents: MZV}}}`` with v = 0 for s and 1 for t.  The spectrum
+{parameter exponents: MZV}}}`` with v = 0 for s and 1 for t, and for
+tables with ``variable = "u"`` (sphere integrands) ``u_poles[Fraction(n)] =
+{k: {power of s: {parameter exponents: MZV}}}``, the pole parts
+``Σ_k R_k(s)/(u − n)^k`` in ``u = −s−t`` at fixed s
+(:func:`lowenergy.svpolylog.sphere_residues.sphere_residues`, which marks its
+tables with ``meta["domain"] = "sphere"``; a ``u`` table with any other pole
+table -- an integral over 0 < x < 1 has no poles in u -- is refused).  The spectrum
 layer computes them exactly (METHOD.md §6-§7): at ``s = n`` from the
 ``x^n log^k x`` terms of ``(1−x)^(−t−1) F(x)`` at x = 0 (rational
 polynomials in t), at ``t = n`` from x = 1 (MZV coefficients).  Because the
@@ -63,6 +69,8 @@ __all__ = [
     "crossing_pole_conditions",
     "crossing_contact_conditions",
     "check_table",
+    "is_sphere_table",
+    "refuse_u_tables",
     "PASS",
     "FAIL",
     "DEPENDS",
@@ -229,16 +237,39 @@ def _table_levels_ok(table, levels: Sequence[int], what: str) -> None:
 
 
 def _pole(table, var: int, level: int) -> Dict[int, Dict[int, ParamPoly]]:
+    if var == 2:
+        return (getattr(table, "u_poles", None) or {}).get(Fraction(level), {})
     return table.poles.get((var, Fraction(level)), {})
 
 
 def _var_name(var: int) -> str:
-    return "s" if var == 0 else "t"
+    return "stu"[var]
 
 
 def _power_name(var: int, power: int) -> str:
-    other = _var_name(1 - var)
+    other = "t" if var == 0 else "s"  # numerators of poles in u are polynomials in s
     return "1" if power == 0 else (other if power == 1 else f"{other}^{power}")
+
+
+def is_sphere_table(table) -> bool:
+    """True for pole tables of sphere integrands (the only ones with poles in u)."""
+    meta = getattr(table, "meta", None)
+    return isinstance(meta, dict) and meta.get("domain") == "sphere"
+
+
+def refuse_u_tables(poles: Sequence[PoleConstraint], table) -> None:
+    """Refuse ``[[pole]]`` tables with ``variable = "u"`` when ``table`` is not
+    the pole table of a sphere integrand (file and line of ``variable``)."""
+    if table is None or is_sphere_table(table):
+        return
+    for pole in poles:
+        if pole.variable == "u":
+            raise InputError(
+                f"pole table '{pole.name}' speaks about poles in u = -s-t, which only sphere integrands have "
+                "(an integral over 0 < x < 1 has poles in s and t only)",
+                source=pole.source, line=pole.where("variable"), term='variable = "u"',
+                hint='use variable = "s" or "t" for this integrand, or a sphere integrand (domain = "sphere")',
+            )
 
 
 def pole_conditions(pole: PoleConstraint, table, levels: Sequence[int], store=None) -> List[Condition]:
@@ -250,6 +281,8 @@ def pole_conditions(pole: PoleConstraint, table, levels: Sequence[int], store=No
     that have one).
     """
     _table_levels_ok(table, levels, f"pole table '{pole.name}'")
+    if pole.variable == "u":
+        refuse_u_tables([pole], table)
     v = pole.var_index
     out: List[Condition] = []
     for n in levels:

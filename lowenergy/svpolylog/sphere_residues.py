@@ -273,7 +273,8 @@ def sphere_residues(integrand: Integrand, levels: int, *, store: TableStore | No
     -------
     ResidueTable
         ``poles`` as for the interval (variable 0 = S, 1 = T, numerators in
-        the other variable), ``u_poles[location]`` with numerators in S.
+        the other variable), ``u_poles[location]`` with numerators in S;
+        ``meta["domain"] = "sphere"`` (``[[pole]]`` tables in u need it).
     """
     if not isinstance(levels, int) or isinstance(levels, bool) or levels < 0:
         raise InputError(f"levels must be a non-negative integer, got {levels!r}")
@@ -336,5 +337,6 @@ def sphere_residues(integrand: Integrand, levels: int, *, store: TableStore | No
         poles=poles,
         title=integrand.title,
         source=integrand.source,
+        meta={"domain": "sphere"},
         u_poles=upoles,
     )

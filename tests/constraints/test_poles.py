@@ -281,7 +281,12 @@ GOOD_POLE = ['variable = "s"', "levels = [1, 2]", "max_order = 1"]
 
 MALFORMED = [
     # (lines of the table, key expected in the message, text expected in the message)
-    (['variable = "u"', "levels = [1]", "max_order = 1"], "variable", 'must be "s" or "t"'),
+    (['variable = "v"', "levels = [1]", "max_order = 1"], "variable", 'must be "s", "t" or "u"'),
+    (['variable = "S"', "levels = [1]", "max_order = 1"], "variable", 'in lower case'),
+    # poles in u = -s-t: sphere integrands only (a.toml below is an interval integrand)
+    (['variable = "u"', "levels = [1]", "max_order = 1"], "variable", "only sphere integrands have"),
+    (['variable = "u"', "levels = [1]", "max_order = 1", 'residues = { 1 = "t+1" }'], "residues.1",
+     "the numerator of a pole in u is a polynomial in s only"),
     (["levels = [1]", "max_order = 1"], "variable", "missing required key 'variable'"),
     (['variable = "s"', "levels = 2", "max_order = 1"], "levels", "must be a list of integers"),
     (['variable = "s"', "levels = [1, -2]", "max_order = 1"], "levels", "out of range"),
