@@ -4,6 +4,9 @@ Each coefficient of ``s^k t^j`` (k ≥ 1) is summed as a fixed-t dispersion
 sum over the poles at the massive levels
 (:func:`lowenergy.spectrum.dispersion.check_dispersion`) and printed beside
 the exact coefficient from the expansion, with the number of agreeing digits.
+Sphere integrands sum the S-channel poles at S = n and the U-channel poles
+at U = n (S = -T-n) level by level (formula and validity in the module
+docstring of :mod:`lowenergy.spectrum.dispersion`).
 """
 
 from __future__ import annotations
@@ -24,7 +27,8 @@ def dispersion(
     file: str = typer.Argument(..., help="integrand file (TOML)"),
     order: int = typer.Option(4, "--order", metavar="N", help="rebuild every v^k w^j with 1 <= k, k + j <= ORDER"),
     levels: int = typer.Option(40, "--levels", metavar="N", help="pole locations summed before the tail is extrapolated"),
-    var: str = typer.Option("s", "--var", metavar="NAME", help="the pole variable v of the dispersion sums (s or t, by name)"),
+    var: Optional[str] = typer.Option(None, "--var", metavar="NAME",
+                                      help="the pole variable v of the dispersion sums, by name (default: the first, s or S)"),
     method: str = typer.Option("auto", "--method", metavar="NAME", help="tail extrapolation: auto | fit | richardson | none"),
     digits: int = typer.Option(DEFAULT_DIGITS, "--digits", metavar="D", help="working digits of the sums"),
     at: Optional[str] = typer.Option(None, "--at", metavar="VALUES", help="values of the free parameters, e.g. a1=1,a2=-1/2"),
@@ -34,11 +38,10 @@ def dispersion(
     them with the exact expansion (exit 0 all agree, 1 any disagrees, 2 bad input)."""
     import mpmath
 
-    from ..cli import _check_digits, _parse_point
+    from ..cli import _check_digits, _parse_point, _residues_of
     from ..errors import InputError
     from ..expansion.engine import expand
     from ..integrand.reader import read_integrand
-    from ..spectrum import residues
     from ..spectrum.dispersion import check_dispersion
 
     _check_digits(digits)
@@ -61,12 +64,19 @@ def dispersion(
             f"{file} has free parameters ({names}): dispersive sums need numbers",
             hint="give their values with --at " + ",".join(f"{p}=..." for p in integrand.parameters),
         )
+    if var is None:
+        var = integrand.variables[0]
     if var not in integrand.variables:
         raise InputError(f"--var must be one of {', '.join(integrand.variables)}, got {var!r}")
     v = integrand.variables.index(var)
     other = integrand.variables[1 - v]
-    table = residues(integrand, levels)
-    expansion = expand(integrand, order)
+    table = _residues_of(integrand, levels)  # interval, or sphere (S, T and U channels)
+    if integrand.domain == "sphere":
+        from ..svpolylog.sphere import expand_sphere
+
+        expansion = expand_sphere(integrand, order)
+    else:
+        expansion = expand(integrand, order)
     rows = []
     for total in range(1, order + 1):
         for k in range(total, 0, -1):
@@ -99,7 +109,9 @@ def dispersion(
         df = pandas.DataFrame(rows, columns=[
             "monomial", "exact", "dispersive_sum", "error_estimate", "digits", "agrees"])
         df["agrees"] = df["agrees"].map({True: "yes", False: "NO"})
-        typer.echo(f"dispersive sums over the poles in {var} at {levels} locations, tail extrapolated ({method})")
+        channels = f"{var} and {'U' if 'U' not in integrand.variables else 'u_'} = -{'-'.join(integrand.variables)}" \
+            if integrand.domain == "sphere" else var
+        typer.echo(f"dispersive sums over the poles in {channels} at {levels} locations, tail extrapolated ({method})")
         typer.echo(df.to_string(index=False))
         bad = [row["monomial"] for row in rows if not row["agrees"]]
         typer.echo("all agree with the expansion" if ok else f"disagree: {', '.join(bad)}")
