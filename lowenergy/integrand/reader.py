@@ -112,6 +112,7 @@ from typing import Dict, List, Optional, Sequence, Tuple
 from ..errors import InputError, LowEnergyError, RegularizationError
 from ..words import shuffle
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
+from ..poly import add_into, add_term
 from .. import tomlpos
 from ..limits import (
     MAX_EXPONENT,
@@ -911,12 +912,7 @@ class _Evaluator:
             if target is None:
                 left[key] = coef if sign > 0 else {k: -c for k, c in coef.items()}
                 continue
-            for k, c in coef.items():
-                y = target.get(k, 0) + (c if sign > 0 else -c)
-                if y:
-                    target[k] = y
-                else:
-                    target.pop(k, None)
+            add_into(target, coef, 1 if sign > 0 else -1)
             if not target:
                 del left[key]
         return left
@@ -983,12 +979,7 @@ class _Evaluator:
                     target = out.get(key)
                     if target is None:
                         out[key] = target = {}
-                    for k, c in coef.items():
-                        v = target.get(k, 0) + c * m
-                        if v:
-                            target[k] = v
-                        else:
-                            target.pop(k, None)
+                    add_into(target, coef, m)
                     if not target:
                         del out[key]
         if self.size(out) > MAX_TERMS:
@@ -1009,12 +1000,7 @@ class _Evaluator:
                 exps = tuple(i + j for i, j in zip(ea, eb))
                 if pa + pb > 4 * MAX_EXPONENT or max(exps, default=0) > 4 * MAX_EXPONENT:
                     raise self.fail(node, "powers too large", "simplify the integrand")
-                k = (pa + pb, exps, _mono_mul(ma, mb))
-                v = out.get(k, 0) + ca * cb
-                if v:
-                    out[k] = v
-                else:
-                    out.pop(k, None)
+                add_term(out, (pa + pb, exps, _mono_mul(ma, mb)), ca * cb)
         return out
 
     def rational_of(self, value: _Value) -> Optional[Fraction]:
