@@ -418,12 +418,7 @@ def terms_from_expression(
                     merged[key] = slot = [{}, summand_line, snippet]
                 target = slot[0]
                 before = len(target)
-                for exps, c in poly.items():
-                    y = target.get(exps, MZV()) + (c if sign > 0 else -c)
-                    if y:
-                        target[exps] = y
-                    else:
-                        target.pop(exps, None)
+                add_into(target, poly, 1 if sign > 0 else -1)
                 total += len(target) - before
                 if total > MAX_TERMS:
                     raise InputError(
@@ -1197,11 +1192,7 @@ class _Evaluator:
                     if pi2 is None:
                         pi2 = MZV.rational(6) * zeta(2, store=self.store)
                     c = c * pi2 ** (p // 2)
-                y = poly.get(exps, MZV()) + c
-                if y:
-                    poly[exps] = y
-                else:
-                    poly.pop(exps, None)
+                add_term(poly, exps, c)
             if poly:
                 out[key] = poly
         return out
