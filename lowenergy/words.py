@@ -34,9 +34,10 @@ from __future__ import annotations
 from fractions import Fraction
 from functools import lru_cache
 from math import comb
-from typing import Dict, Iterable, Mapping, Tuple
+from typing import Dict, Iterable, Tuple
 
 from .errors import InputError, RegularizationError
+from .poly import add_into, add_term
 
 __all__ = [
     "Word",
@@ -64,18 +65,9 @@ Indices = Tuple[int, ...]
 Combination = Dict[tuple, Fraction]
 
 
-def add_into(target: dict, source: Mapping, factor=1) -> dict:
-    """``target += factor * source`` for dict-based linear combinations.
-
-    Zero coefficients are removed so that equal combinations compare equal.
-    """
-    for key, value in source.items():
-        new = target.get(key, 0) + factor * value
-        if new:
-            target[key] = new
-        else:
-            target.pop(key, None)
-    return target
+# add_into(target, source, factor): ``target += factor * source`` for linear
+# combinations of words, zeros removed -- the one copy is in lowenergy.poly
+# (imported above; the name stays in this module's __all__).
 
 
 # --------------------------------------------------------------------------
@@ -280,11 +272,7 @@ def _reduce_by_levels(start: tuple, level, step) -> tuple:
     def add(key: tuple, c) -> None:
         lev = level(key)
         if lev is None:
-            new = out.get(key, 0) + c
-            if new:
-                out[key] = new
-            else:
-                out.pop(key, None)
+            add_term(out, key, c)
             return
         if key not in pending:
             buckets.setdefault(lev, []).append(key)

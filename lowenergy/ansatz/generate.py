@@ -91,6 +91,7 @@ from .. import __version__
 from ..errors import InputError
 from ..limits import int_text
 from ..integrand.transform import g_of_one_minus_x
+from ..poly import add_into
 from ..words import all_words
 from ..zeta.element import MZV
 from ..zeta.reduction import monomials_of_weight
@@ -613,8 +614,7 @@ def generate(spec: AnsatzSpec, store: TableStore | None = None) -> Ansatz:
                 vecs = []
                 for c, m in pairs:
                     v = _flatten(combination(c.word, "x"), c.constant, m)
-                    for key, q in _flatten(combination(c.word, "1-x"), c.constant, m[::-1]).items():
-                        v[key] = v.get(key, 0) + sign * q
+                    add_into(v, _flatten(combination(c.word, "1-x"), c.constant, m[::-1]), sign)
                     vecs.append(v)
                 chosen.extend((pairs[i][0], pairs[i][1], sign) for i in independent_subset(vecs))
         terms_by_weight.append(chosen)

@@ -96,7 +96,8 @@ from typing import Dict, List, Mapping, Optional, Sequence, Tuple, Union
 
 from ..errors import InputError, LowEnergyError
 from ..expansion.result import Expansion
-from ..integrand.model import Integrand, poly_mul
+from ..integrand.model import Integrand
+from ..poly import add_into, add_term, mul as poly_mul
 from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from ..zeta.format import fraction_text
@@ -167,11 +168,7 @@ def _equations(
     zero = (0,) * n
     residual = dict(lhs)
     if rhs:
-        y = residual.get(zero, MZV()) - rhs
-        if y:
-            residual[zero] = y
-        else:
-            residual.pop(zero, None)
+        add_term(residual, zero, -rhs)
     rows: Dict[tuple, Row] = {}
     for pe, x in residual.items():
         if sum(pe) > 1:
@@ -817,12 +814,7 @@ class _Substituter:
                 else:
                     shift[self.index[name]] += e
             for k, q in acc.items():
-                new = head + tuple(a + b for a, b in zip(k, shift))
-                y = out.get(new, MZV()) + x * q
-                if y:
-                    out[new] = y
-                else:
-                    out.pop(new, None)
+                add_term(out, head + tuple(a + b for a, b in zip(k, shift)), x * q)
         return out
 
 
@@ -886,12 +878,7 @@ def _term_sums(itg: Integrand) -> Dict[tuple, Dict[tuple, MZV]]:
     for term in itg.terms:
         key = (term.x_exp, term.y_exp, tuple(term.word))
         slot = out.setdefault(key, {})
-        for k, x in term.coefficient.items():
-            y = slot.get(k, MZV()) + x
-            if y:
-                slot[k] = y
-            else:
-                slot.pop(k, None)
+        add_into(slot, term.coefficient)
     return {k: v for k, v in out.items() if v}
 
 

@@ -42,6 +42,7 @@ from typing import Callable, Dict, List, Optional, Tuple
 
 from ..errors import InputError
 from ..integrand.model import Integrand, LinearExponent, Term
+from ..poly import add_term as poly_add_term
 from ..zeta.element import MZV, g_value
 from ..zeta.table import TableStore, default_store
 from .result import Expansion, add_term
@@ -218,11 +219,7 @@ def raw_series(
             return
         if i + j > order:
             return
-        y = out.get((i, j), MZV()) + value
-        if y:
-            out[(i, j)] = y
-        else:
-            out.pop((i, j), None)
+        poly_add_term(out, (i, j), value)
 
     def mono(var: Optional[int], power: int) -> Tuple[int, int]:
         if var is None or power == 0:

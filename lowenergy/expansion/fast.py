@@ -26,6 +26,7 @@ from typing import Callable, Dict, List, Optional, Tuple
 
 from ..errors import InputError
 from ..integrand.model import Integrand, LinearExponent
+from ..poly import add as poly_add, add_term
 from ..zeta.element import MZV
 from ..zeta.table import TableStore
 from .engine import _split, endpoint_coefficients_at_one, raw_series
@@ -56,14 +57,9 @@ def column_space(store: TableStore) -> ColumnSpace:
 # ---------------------------------------------------------------------------
 
 def _add_into(out: VSeries, key: Tuple[int, int], vec, factor=1) -> None:
-    if not vec:
-        return
-    got = out.get(key)
-    y = vec * factor if got is None else got + vec * factor
-    if y:
-        out[key] = y
-    else:
-        out.pop(key, None)
+    """``out[key] += vec * factor`` (zeros dropped by :func:`lowenergy.poly.add_term`)."""
+    if vec:
+        add_term(out, key, vec * factor)
 
 
 def _linear_times(series: VSeries, const: int, lin: Tuple[Fraction, Fraction], order: int) -> VSeries:
@@ -119,10 +115,7 @@ def _divide_linear(series: VSeries, const: int, lin: Tuple[Fraction, Fraction], 
 
 
 def _plus(a: VSeries, b: VSeries, factor: int = 1) -> VSeries:
-    out = dict(a)
-    for k, v in b.items():
-        _add_into(out, k, v, factor)
-    return out
+    return poly_add(a, b, factor)
 
 
 # ---------------------------------------------------------------------------

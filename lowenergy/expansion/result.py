@@ -19,6 +19,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Dict, Iterator, Tuple
 
+from ..poly import add_term as poly_add_term
 from ..zeta.element import MZV
 from ..zeta.format import join_terms
 
@@ -205,10 +206,6 @@ def add_term(target: Dict, key: Tuple[int, int], pkey: Tuple[int, ...], value: M
     """Add ``value`` to ``target[key][pkey]`` (coefficients keyed by powers and
     parameter monomial), dropping entries and slots that become zero."""
     slot = target.setdefault(key, {})
-    y = slot.get(pkey, MZV()) + value
-    if y:
-        slot[pkey] = y
-    else:
-        slot.pop(pkey, None)
-        if not slot:
-            del target[key]
+    poly_add_term(slot, pkey, value)
+    if not slot:
+        del target[key]

@@ -21,6 +21,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Dict, Optional, Tuple
 
+from .. import poly as _poly
 from ..zeta.element import MZV
 
 __all__ = ["Poly", "LinearExponent", "Term", "Integrand", "poly_add", "poly_mul", "poly_scale"]
@@ -29,42 +30,11 @@ __all__ = ["Poly", "LinearExponent", "Term", "Integrand", "poly_add", "poly_mul"
 Poly = Dict[Tuple[int, ...], MZV]
 
 
-def poly_add(a: Poly, b: Poly, factor: int | Fraction = 1) -> Poly:
-    """``a + factor * b`` (new dict; zero coefficients dropped).
-
-    Works for any coefficients that add to an int 0 (MZV, Fraction, int).
-    """
-    out = dict(a)
-    for k, v in b.items():
-        y = out.get(k, 0) + v * factor
-        if y:
-            out[k] = y
-        else:
-            out.pop(k, None)
-    return out
-
-
-def poly_mul(a: Poly, b: Poly) -> Poly:
-    """Product of two polynomials with exponent tuples of one length (any coefficients)."""
-    out: Poly = {}
-    for ka, va in a.items():
-        for kb, vb in b.items():
-            k = tuple(x + y for x, y in zip(ka, kb))
-            y = out.get(k, 0) + va * vb
-            if y:
-                out[k] = y
-            else:
-                out.pop(k, None)
-    return out
-
-
-def poly_scale(a: Poly, c: MZV | int | Fraction) -> Poly:
-    out: Poly = {}
-    for k, v in a.items():
-        y = v * c
-        if y:
-            out[k] = y
-    return out
+# The polynomial arithmetic is the package's one copy in lowenergy.poly; the
+# names stay here for code that imported them from the model.
+poly_add = _poly.add
+poly_mul = _poly.mul
+poly_scale = _poly.scale
 
 
 @dataclass(frozen=True)

@@ -112,6 +112,7 @@ from typing import Dict, List, Optional, Sequence, Tuple
 from ..errors import InputError, LowEnergyError, RegularizationError
 from ..words import shuffle
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
+from ..poly import add_into, add_term
 from .. import tomlpos
 from ..limits import (
     MAX_EXPONENT,
@@ -417,12 +418,7 @@ def terms_from_expression(
                     merged[key] = slot = [{}, summand_line, snippet]
                 target = slot[0]
                 before = len(target)
-                for exps, c in poly.items():
-                    y = target.get(exps, MZV()) + (c if sign > 0 else -c)
-                    if y:
-                        target[exps] = y
-                    else:
-                        target.pop(exps, None)
+                add_into(target, poly, 1 if sign > 0 else -1)
                 total += len(target) - before
                 if total > MAX_TERMS:
                     raise InputError(
@@ -911,12 +907,7 @@ class _Evaluator:
             if target is None:
                 left[key] = coef if sign > 0 else {k: -c for k, c in coef.items()}
                 continue
-            for k, c in coef.items():
-                y = target.get(k, 0) + (c if sign > 0 else -c)
-                if y:
-                    target[k] = y
-                else:
-                    target.pop(k, None)
+            add_into(target, coef, 1 if sign > 0 else -1)
             if not target:
                 del left[key]
         return left
@@ -983,12 +974,7 @@ class _Evaluator:
                     target = out.get(key)
                     if target is None:
                         out[key] = target = {}
-                    for k, c in coef.items():
-                        v = target.get(k, 0) + c * m
-                        if v:
-                            target[k] = v
-                        else:
-                            target.pop(k, None)
+                    add_into(target, coef, m)
                     if not target:
                         del out[key]
         if self.size(out) > MAX_TERMS:
@@ -1009,12 +995,7 @@ class _Evaluator:
                 exps = tuple(i + j for i, j in zip(ea, eb))
                 if pa + pb > 4 * MAX_EXPONENT or max(exps, default=0) > 4 * MAX_EXPONENT:
                     raise self.fail(node, "powers too large", "simplify the integrand")
-                k = (pa + pb, exps, _mono_mul(ma, mb))
-                v = out.get(k, 0) + ca * cb
-                if v:
-                    out[k] = v
-                else:
-                    out.pop(k, None)
+                add_term(out, (pa + pb, exps, _mono_mul(ma, mb)), ca * cb)
         return out
 
     def rational_of(self, value: _Value) -> Optional[Fraction]:
@@ -1211,11 +1192,7 @@ class _Evaluator:
                     if pi2 is None:
                         pi2 = MZV.rational(6) * zeta(2, store=self.store)
                     c = c * pi2 ** (p // 2)
-                y = poly.get(exps, MZV()) + c
-                if y:
-                    poly[exps] = y
-                else:
-                    poly.pop(exps, None)
+                add_term(poly, exps, c)
             if poly:
                 out[key] = poly
         return out

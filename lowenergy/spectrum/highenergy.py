@@ -64,6 +64,7 @@ import mpmath
 
 from ..errors import InputError, NumericError
 from ..integrand.model import Integrand
+from ..poly import add as poly_add, mul as poly_mul
 from ..zeta.element import MZV
 from .xfunctions import XFunction
 
@@ -534,30 +535,6 @@ class Relation:
     monomials: Tuple[Tuple[int, ...], ...]
 
 
-def _rel_add(a, b, sign=1):
-    out = dict(a)
-    for k, v in b.items():
-        y = out.get(k, MZV()) + v * sign
-        if y:
-            out[k] = y
-        else:
-            out.pop(k, None)
-    return out
-
-
-def _rel_mul(a, b):
-    out: Dict[Tuple[int, ...], MZV] = {}
-    for ka, va in a.items():
-        for kb, vb in b.items():
-            k = tuple(x + y for x, y in zip(ka, kb))
-            y = out.get(k, MZV()) + va * vb
-            if y:
-                out[k] = y
-            else:
-                out.pop(k, None)
-    return out
-
-
 def parse_relation(text: str, orders: int, source: str = "--relation") -> Relation:
     """Parse ``"A2 = A1^2/2"`` (names ``A1 ... A<orders>``; numbers, ``zeta(...)``,
     ``+ - *``, division by numbers, non-negative integer powers); never evaluated as code.
@@ -596,11 +573,11 @@ def parse_relation(text: str, orders: int, source: str = "--relation") -> Relati
         if isinstance(node, Neg):
             return {k: -v for k, v in kids[0].items()}
         if isinstance(node, Add):
-            return _rel_add(kids[0], kids[1])
+            return poly_add(kids[0], kids[1])
         if isinstance(node, Sub):
-            return _rel_add(kids[0], kids[1], -1)
+            return poly_add(kids[0], kids[1], -1)
         if isinstance(node, Mul):
-            return _rel_mul(kids[0], kids[1])
+            return poly_mul(kids[0], kids[1])
         if isinstance(node, Div):
             den = kids[1]
             if set(den) - {zero} or not den or not den[zero].is_rational() or not den[zero]:
@@ -617,7 +594,7 @@ def parse_relation(text: str, orders: int, source: str = "--relation") -> Relati
                 raise InputError("powers must be integers from 0 to 32", source=source, term=to_text(node)[:60])
             out = {zero: MZV.one()}
             for _ in range(int(q)):
-                out = _rel_mul(out, kids[0])
+                out = poly_mul(out, kids[0])
             return out
         raise InputError(f"not allowed in a relation: {to_text(node)!r}", source=source)
 
@@ -628,7 +605,7 @@ def parse_relation(text: str, orders: int, source: str = "--relation") -> Relati
 
     lhs, rhs = evaluate(lhs_text), evaluate(rhs_text)
     monos = tuple(sorted(set(lhs) | set(rhs)))
-    return Relation(text.strip(), _rel_add(lhs, rhs, -1), monos)
+    return Relation(text.strip(), poly_add(lhs, rhs, -1), monos)
 
 
 def default_relations(orders: int) -> List[Relation]:

@@ -60,6 +60,7 @@ from typing import Dict, Iterable, List, Optional, Sequence, Tuple, Union
 import mpmath
 
 from ..errors import InputError
+from ..poly import add_into
 from ..zeta.element import MZV
 from .residues import ParamPoly, ResiduePoly, ResidueTable, VarSpec, _param_text, write_rows
 
@@ -176,12 +177,7 @@ def residue_in_cos_theta(rpoly: ResiduePoly, mass2: Number) -> List[ParamPoly]:
         # (m²/2)^i (x - 1)^i
         for p in range(i + 1):
             factor = half ** i * math.comb(i, p) * (-1) ** (i - p)
-            for key, value in pp.items():
-                y = out[p].get(key, MZV()) + value * factor
-                if y:
-                    out[p][key] = y
-                else:
-                    out[p].pop(key, None)
+            add_into(out[p], pp, factor)
     return out
 
 

@@ -73,6 +73,7 @@ from ..errors import InputError
 from ..fileio import write_atomic
 from ..integrand.model import Integrand, Poly, Term
 from ..integrand.transform import g_of_one_minus_x
+from ..poly import add_term, mul as poly_mul
 from ..zeta.element import MZV
 from ..zeta.format import fraction_text
 from ..zeta.table import TableStore, default_store
@@ -194,12 +195,9 @@ def _binomial_series(shift: int, coeff: Fraction, order: int) -> List[List[Fract
 # polynomial helpers on plain dicts
 # ---------------------------------------------------------------------------
 
-def _padd(target: Dict, key, value: MZV) -> None:
-    y = target.get(key, MZV()) + value
-    if y:
-        target[key] = y
-    else:
-        target.pop(key, None)
+# ``target[key] += value`` dropping zeros (the one copy is lowenergy.poly.add_term;
+# the name stays for lowenergy.svpolylog.sphere_residues, which imports it)
+_padd = add_term
 
 
 def _taylor_shift(poly: Poly, index: int, point: Fraction) -> Dict[int, Poly]:
@@ -426,7 +424,7 @@ class ResidueTable:
                     for fk, fc in f.items():
                         slot = rem.setdefault(d - top + fk, {})
                         for pk, c in qc.items():
-                            _padd(slot, pk, -(c * fc))
+                            add_term(slot, pk, -(c * fc))
                         if not slot:
                             del rem[d - top + fk]
                 if rem and not strict:
@@ -640,7 +638,7 @@ def _endpoint_poles(
         key = [0] * nvars
         if far.var is not None:
             key[far.var] = power
-        _padd(expansions.setdefault((m, k), {}), tuple(key), cu * value)
+        add_term(expansions.setdefault((m, k), {}), tuple(key), cu * value)
     poles_from_expansions(coefficient, near, expansions, levels, out)
 
 
@@ -679,10 +677,7 @@ def poles_from_expansions(
     ``|z|^(2m) log^k|z|²/k!`` integrate to the same ``(-1)^k/α^(k+1)``.
     """
     for (m, k), poly in expansions.items():
-        full: Poly = {}
-        for ka, va in coefficient.items():
-            for kb, vb in poly.items():
-                _padd(full, tuple(x + y for x, y in zip(ka, kb)), va * vb)
+        full: Poly = poly_mul(coefficient, poly)
         if not full:
             continue
         if near.var is None:
@@ -702,7 +697,7 @@ def poles_from_expansions(
                 continue
             slot = out.setdefault((near.var, p), {}).setdefault(j, {})
             for key, value in part.items():
-                _padd(slot, key, value * scale)
+                add_term(slot, key, value * scale)
 
 
 # Flat rational form of the same computation (the fast path).  MZV elements are
@@ -881,10 +876,7 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
                 if not value:
                     continue
                 slot = poles.setdefault(place, {}).setdefault(j, {}).setdefault(power, {})
-                if pkey in slot:
-                    _padd(slot, pkey, value)
-                else:
-                    slot[pkey] = value
+                add_term(slot, pkey, value)
     for place in list(poles):
         orders = {j: {pw: pp for pw, pp in rp.items() if pp} for j, rp in poles[place].items()}
         orders = {j: rp for j, rp in orders.items() if rp}

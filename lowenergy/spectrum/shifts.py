@@ -35,6 +35,7 @@ from typing import Dict, List, Optional, Sequence, Tuple
 import mpmath
 
 from ..errors import InputError
+from ..poly import add as poly_add
 from ..zeta.element import MZV
 from .partial_waves import DEFAULT_DIMENSION, alpha_of_dimension, decompose, residue_in_cos_theta
 from .residues import ResidueTable, write_rows
@@ -52,17 +53,6 @@ def _univariate(table: ResidueTable, location: Fraction, order: int, var: int) -
                 raise InputError("spectrum shifts need integrands without free parameters", source=table.source)
             if c:
                 out[power] = c
-    return out
-
-
-def _add(a: Univariate, b: Univariate) -> Univariate:
-    out = dict(a)
-    for k, v in b.items():
-        y = out.get(k, MZV()) + v
-        if y:
-            out[k] = y
-        else:
-            out.pop(k, None)
     return out
 
 
@@ -240,13 +230,13 @@ def spectrum_shifts(tables: Sequence[ResidueTable], D=DEFAULT_DIMENSION, *, var:
         R12 = _univariate(tables[1], n, 2, var)
         R11 = _univariate(tables[1], n, 1, var)
         b1 = _waves(R12, n, alpha)
-        a1 = _waves(_add(R11, _t_dt_over_n(R12, n)), n, alpha)
+        a1 = _waves(poly_add(R11, _t_dt_over_n(R12, n)), n, alpha)
         b2 = d2 = {}
         if len(tables) > 2:
             R23 = _univariate(tables[2], n, 3, var)
             R22 = _univariate(tables[2], n, 2, var)
             b2 = _waves(R23, n, alpha)
-            d2 = _waves(_add(R22, _t_dt_over_n(R23, n)), n, alpha)
+            d2 = _waves(poly_add(R22, _t_dt_over_n(R23, n)), n, alpha)
         for J in sorted(set(b1) | set(b2)):
             if J not in a0:
                 what = "shift at a spin with no flat residue"

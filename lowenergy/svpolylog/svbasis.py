@@ -42,7 +42,7 @@ from fractions import Fraction
 from typing import Dict, List, Mapping, Tuple
 
 from ..errors import InputError
-from ..integrand.model import poly_add
+from ..poly import add as poly_add
 from ..zeta.element import MZV, zeta
 from ..zeta.falphabet import FKey
 from ..zeta.format import join_terms, term_text

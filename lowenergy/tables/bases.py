@@ -80,8 +80,8 @@ from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Un
 from ..errors import InputError, InternalError
 from ..linalg import DependentColumn, solve_gram
 from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression, to_text
+from ..poly import add as poly_add, mul as poly_mul, power as poly_power, total_degree as poly_degree, truncated as poly_truncated
 from ..zeta.element import MZV
-from ..integrand.model import poly_add
 from ..zeta.format import join_terms, term_text
 
 __all__ = [
@@ -169,39 +169,9 @@ def parse_element_name(text: str) -> Optional[Tuple[str, int, int]]:
 # --------------------------------------------------------------------------
 
 
-def _pmul(a: Poly2, b: Poly2, truncate: Optional[int] = None) -> Poly2:
-    out: Poly2 = {}
-    for (i1, j1), v1 in a.items():
-        for (i2, j2), v2 in b.items():
-            k = (i1 + i2, j1 + j2)
-            if truncate is not None and k[0] + k[1] > truncate:
-                continue
-            y = out.get(k, Fraction(0)) + v1 * v2
-            if y:
-                out[k] = y
-            else:
-                out.pop(k, None)
-    return out
-
-
-def _ppow(a: Poly2, n: int, truncate: Optional[int] = None) -> Poly2:
-    result: Poly2 = {(0, 0): Fraction(1)}
-    base = a
-    while n:
-        if n & 1:
-            result = _pmul(result, base, truncate)
-        n >>= 1
-        if n:
-            base = _pmul(base, base, truncate)
-    return result
-
-
-def _degree(p: Poly2) -> int:
-    return max((i + j for i, j in p), default=0)
-
-
-def _truncate(p: Poly2, order: int) -> Poly2:
-    return {k: v for k, v in p.items() if k[0] + k[1] <= order}
+def _ppow(a: Poly2, n: int) -> Poly2:
+    """``a ** n`` with the constant ``Fraction(1)`` for ``n = 0``."""
+    return poly_power(a, n, 2, one=Fraction(1))
 
 
 _S: Poly2 = {(1, 0): Fraction(1)}
@@ -223,7 +193,7 @@ def sigma_polynomial(a: int, b: int) -> Poly2:
     >>> polynomial_text(sigma_polynomial(0, 1))
     '-3*s^2*t - 3*s*t^2'
     """
-    return _pmul(_ppow(_SIGMA2, a), _ppow(_SIGMA3, b))
+    return poly_mul(_ppow(_SIGMA2, a), _ppow(_SIGMA3, b))
 
 
 def _sorted_monomials(keys: Iterable[Tuple[int, int]]) -> List[Tuple[int, int]]:
@@ -360,11 +330,11 @@ def parse_polynomial(
             return poly_add(vals[0], vals[1], Fraction(-1))
         if isinstance(node, Mul):
             a, b = vals
-            if _degree(a) + _degree(b) > MAX_BASIS_DEGREE:
+            if poly_degree(a) + poly_degree(b) > MAX_BASIS_DEGREE:
                 raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
             if len(a) * len(b) > _MAX_PRODUCT:
                 raise fail(node, "polynomial too large")
-            return _pmul(a, b)
+            return poly_mul(a, b)
         if isinstance(node, Div):
             q = _constant(vals[1])
             if q is None:
@@ -384,7 +354,7 @@ def parse_polynomial(
             base = vals[0]
             if n > _MAX_EXPONENT:
                 raise fail(node.exponent, f"exponent larger than {_MAX_EXPONENT}")
-            if n and _degree(base) * n > MAX_BASIS_DEGREE:
+            if n and poly_degree(base) * n > MAX_BASIS_DEGREE:
                 raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
             return _ppow(base, n)
         raise fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
@@ -479,7 +449,7 @@ class Decomposition:
             if not coeff:
                 continue
             vec = _flatten(coeff)
-            for m, q in _truncate(e.polynomial, self.order).items():
+            for m, q in poly_truncated(e.polynomial, self.order).items():
                 flat[m] = _vadd(flat.get(m, {}), vec, q)
         for m, pp in self.remainder.items():
             flat[m] = _vadd(flat.get(m, {}), _flatten(pp))
@@ -740,7 +710,7 @@ def _symmetrized(i: int, j: int, cache: Dict[Tuple[int, int], Poly2]) -> Poly2:
     if (i, j) not in cache:
         total: Poly2 = {}
         for x, y in _PERMUTATIONS:
-            total = poly_add(total, _pmul(_ppow(x, i), _ppow(y, j)))
+            total = poly_add(total, poly_mul(_ppow(x, i), _ppow(y, j)))
         cache[(i, j)] = {k: v / 6 for k, v in total.items()}
     return cache[(i, j)]
 
@@ -898,7 +868,7 @@ def decompose_user(
     skipped: List[str] = []
     truncated: List[Poly2] = []
     for idx, poly in enumerate(basis.polynomials):
-        t = _truncate(poly, order)
+        t = poly_truncated(poly, order)
         if t:
             kept.append(idx)
             truncated.append(t)
@@ -927,7 +897,7 @@ def decompose_user(
     for idx, v in zip(kept, coeffs_flat):
         name, poly = basis.names[idx], basis.polynomials[idx]
         elements.append(
-            BasisElement(name, dict(poly), polynomial_text(poly, variables), polynomial_latex(poly, variables), _degree(poly))
+            BasisElement(name, dict(poly), polynomial_text(poly, variables), polynomial_latex(poly, variables), poly_degree(poly))
         )
         pp = _unflatten(v)
         if pp:

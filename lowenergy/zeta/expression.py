@@ -24,6 +24,7 @@ from typing import Dict
 
 from ..errors import InputError, LowEnergyError, RegularizationError
 from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression
+from ..poly import add as poly_add, add_term
 from .element import MZV, g_value, zeta
 from .table import TableStore
 
@@ -39,12 +40,7 @@ PiValue = Dict[int, MZV]
 
 
 def _add(a: PiValue, b: PiValue, sign: int = 1) -> PiValue:
-    out = dict(a)
-    for p, x in b.items():
-        out[p] = out.get(p, MZV()) + (x if sign == 1 else -x)
-        if not out[p]:
-            del out[p]
-    return out
+    return poly_add(a, b, sign)
 
 
 def _mul(a: PiValue, b: PiValue, budget: list | None = None) -> PiValue:
@@ -64,11 +60,7 @@ def _mul(a: PiValue, b: PiValue, budget: list | None = None) -> PiValue:
         for pb, xb in b.items():
             if pa + pb > MAX_PI_POWER:
                 raise InputError(f"power of pi above {MAX_PI_POWER}")
-            y = out.get(pa + pb, MZV()) + xa * xb
-            if y:
-                out[pa + pb] = y
-            else:
-                out.pop(pa + pb, None)
+            add_term(out, pa + pb, xa * xb)
     return out
 
 
