@@ -145,6 +145,7 @@ class SphereValues:
         self._z: Dict[Word, _Raw] = {}
         self._phi: Dict[Word, _Raw] = {}
         self._k: Dict[Word, _Raw] = {}
+        self._engines: Dict[Tuple[int, int], "_ShiftedEngine"] = {}
 
     def z_raw(self, w: Word) -> _Raw:
         got = self._z.get(w)
@@ -223,14 +224,12 @@ def infinity_value(word, store: TableStore | None = None) -> MZV:
 
 
 def _check_shift(x_exp: LinearExponent, y_exp: LinearExponent) -> Tuple[int, int]:
-    a, b = x_exp.shift + 1, y_exp.shift + 1
-    if a < 0 or b < 0 or a + b > 1:
-        raise InputError(
-            f"the exponents |z|^({2 * x_exp.shift}+...) |1-z|^({2 * y_exp.shift}+...) are not supported on the sphere",
-            hint="supported: |z|^(2*A) |1-z|^(2*B) with A, B = -1 + (multiple of a variable), or one of them "
-            "0 + (multiple of a variable), e.g. abs(z)^(-2*S-2)*abs(1-z)^(-2*T) (a massless U-channel pole)",
-        )
-    return a, b
+    """``(a, b)`` from the exponents ``A = a - 1 + c·v``, ``B = b - 1 + d·v'``.
+
+    Every pair of integers is accepted here; divergences that no variable
+    regulates are refused where they are found (:func:`_shifted_poles`).
+    """
+    return x_exp.shift + 1, y_exp.shift + 1
 
 
 def sphere_raw_series(
@@ -239,6 +238,7 @@ def sphere_raw_series(
     word: Word,
     order: int,
     values: Optional[SphereValues] = None,
+    _general: bool = False,
 ) -> Tuple[Series, UPoles]:
     """Laurent series of ``(1/π) ∫ d²z |z|^(2·x_exp) |1-z|^(2·y_exp) L_word(z)``.
 
@@ -252,6 +252,8 @@ def sphere_raw_series(
     values = values or SphereValues("sv")
     word = tuple(word)
     a, b = _check_shift(x_exp, y_exp)
+    if _general or (a, b) not in ((0, 0), (1, 0), (0, 1)):
+        return _shifted_series(x_exp, y_exp, word, order, values, a, b)
     c, vx = x_exp.coeff, x_exp.var
     d, vy = y_exp.coeff, y_exp.var
     out: Series = {}
@@ -369,6 +371,345 @@ def sphere_raw_series(
 
 
 # ---------------------------------------------------------------------------
+# general integer shifts: Stokes with rational × L primitives (module docstring, step 5)
+# ---------------------------------------------------------------------------
+
+# A rational function of z with poles only at 0, 1 (and ∞) in partial fractions:
+# {("z", k): c} for c z^k (k any integer), {("y", k): c} for c (z-1)^(-k) (k ≥ 1).
+Rational = Dict[Tuple[str, int], Fraction]
+
+
+def _qadd(acc: Rational, key, value) -> None:
+    y = acc.get(key, 0) + value
+    if y:
+        acc[key] = y
+    else:
+        acc.pop(key, None)
+
+
+def _rat_over(r: Rational, a: int) -> Rational:
+    """``r(z) / (z - a)`` (a = 0 or 1) in partial fractions."""
+    out: Rational = {}
+    for (kind, k), c in r.items():
+        if a == 0:
+            if kind == "z":
+                _qadd(out, ("z", k - 1), c)
+            else:
+                # 1/(z (z-1)^k) = (-1)^k/z + Σ_{j=1..k} (-1)^(k-j)/(z-1)^j
+                _qadd(out, ("z", -1), c * (-1) ** k)
+                for j in range(1, k + 1):
+                    _qadd(out, ("y", j), c * (-1) ** (k - j))
+        else:
+            if kind == "y":
+                _qadd(out, ("y", k + 1), c)
+            elif k >= 0:
+                # z^k/(z-1) = Σ_{j<k} z^j + 1/(z-1)
+                for j in range(k):
+                    _qadd(out, ("z", j), c)
+                _qadd(out, ("y", 1), c)
+            else:
+                # 1/(z^m (z-1)) = 1/(z-1) - Σ_{j=1..m} z^(-j)
+                _qadd(out, ("y", 1), c)
+                for j in range(1, -k + 1):
+                    _qadd(out, ("z", -j), -c)
+    return out
+
+
+def _rat_times_linear(r: Rational, a: int) -> Rational:
+    """``r(z) · (z - a)`` (a = 0 or 1)."""
+    out: Rational = {}
+    for (kind, k), c in r.items():
+        if kind == "z":
+            _qadd(out, ("z", k + 1), c)
+            if a == 1:
+                _qadd(out, ("z", k), -c)
+        else:
+            lower = ("y", k - 1) if k > 1 else ("z", 0)
+            _qadd(out, lower, c)
+            if a == 0:  # z = (z - 1) + 1
+                _qadd(out, ("y", k), c)
+    return out
+
+
+def _h_rational(a: int, b: int) -> Rational:
+    """``h(z) = z^(a-1) (1-z)^(b-1)`` in partial fractions."""
+    r: Rational = {("z", 0): Fraction(1)}
+    for _ in range(abs(a - 1)):
+        r = _rat_times_linear(r, 0) if a - 1 > 0 else _rat_over(r, 0)
+    for _ in range(abs(b - 1)):
+        # (1 - z) = -(z - 1)
+        r = _rat_times_linear(r, 1) if b - 1 > 0 else _rat_over(r, 1)
+        r = {key: -c for key, c in r.items()}
+    return r
+
+
+def _rat_primitive(r: Rational) -> Tuple[Rational, Fraction, Fraction]:
+    """``(R, c0, c1)`` with ``r = R' + c0/z + c1/(z-1)``."""
+    out: Rational = {}
+    c0 = c1 = Fraction(0)
+    for (kind, k), c in r.items():
+        if kind == "z":
+            if k == -1:
+                c0 += c
+            else:
+                _qadd(out, ("z", k + 1), c / (k + 1))
+        elif k == 1:
+            c1 += c
+        else:
+            _qadd(out, ("y", k - 1), c / (1 - k))
+    return out, c0, c1
+
+
+def _primitive(r: Rational, word: Word) -> List[Tuple[Rational, Word]]:
+    """A single-valued primitive in z of ``r(z) L_word(z)``: ``[(r_i, w_i)]``
+    with ``Φ = Σ r_i(z) L_{w_i}(z)``.
+
+    ``c0/z · L_u`` has the primitive ``c0 L_{0u}``, ``c1/(z-1) · L_u`` has
+    ``c1 L_{1u}``; for the rest ``R' L_u`` integrate by parts:
+    ``R L_u - ∫ R/(z - u_1) L_{u_2...}``.  Each step lowers the weight.
+    """
+    out: List[Tuple[Rational, Word]] = []
+    u = tuple(word)
+    while r:
+        big_r, c0, c1 = _rat_primitive(r)
+        if c0:
+            out.append(({("z", 0): c0}, (0,) + u))
+        if c1:
+            out.append(({("z", 0): c1}, (1,) + u))
+        if not big_r:
+            break
+        out.append((big_r, u))
+        if not u:
+            break
+        r = {key: -c for key, c in _rat_over(big_r, u[0]).items()}
+        u = u[1:]
+    return out
+
+
+def _rat_principal(r: Rational, point: str) -> Dict[int, Fraction]:
+    """``{j: coefficient of t^(-j)}`` (j ≥ 0) of r at ``point`` (local coordinate t)."""
+    out: Dict[int, Fraction] = {}
+    for (kind, k), c in r.items():
+        if point == "0":
+            if kind == "z" and k <= 0:
+                out[-k] = out.get(-k, 0) + c
+            elif kind == "y":
+                out[0] = out.get(0, 0) + c * (-1) ** k
+        elif point == "1":
+            if kind == "y":
+                out[k] = out.get(k, 0) + c
+            else:  # z^k = (1 + t)^k
+                out[0] = out.get(0, 0) + c
+        else:  # t = 1/z: only z^k, k ≥ 0, reaches t^(-j), j ≥ 0
+            if kind == "z" and k >= 0:
+                out[k] = out.get(k, 0) + c
+    return {j: c for j, c in out.items() if c}
+
+
+def _gbinom(x: int, n: int) -> Fraction:
+    """Generalized binomial coefficient ``x (x-1) ... (x-n+1) / n!`` for any integer x."""
+    out = Fraction(1)
+    for i in range(n):
+        out = out * (x - i) / (i + 1)
+    return out
+
+
+def _h_local(a: int, b: int, point: str, top: int) -> Dict[int, Fraction]:
+    """``{m: coefficient of t^m}`` (m ≤ top) of ``h = z^(a-1)(1-z)^(b-1)`` at ``point``.
+
+    At 0: ``t^(a-1) (1-t)^(b-1)``; at 1: ``(1+t)^(a-1) (-t)^(b-1)``;
+    at ∞ (``t = 1/z``): ``(-1)^(b-1) t^(2-a-b) (1-t)^(b-1)``.
+    """
+    out: Dict[int, Fraction] = {}
+    if point == "0":
+        lead, x, sign, pre = a - 1, b - 1, -1, 1
+    elif point == "1":
+        lead, x, sign, pre = b - 1, a - 1, 1, -1 if (b - 1) % 2 else 1
+    else:
+        lead, x, sign, pre = 2 - a - b, b - 1, -1, -1 if (b - 1) % 2 else 1
+    n = 0
+    while lead + n <= top:
+        c = pre * _gbinom(x, n) * sign ** n
+        if c:
+            out[lead + n] = c
+        n += 1
+    return out
+
+
+#: ``(sign, q*)`` of the boundary term at each point: ``sign · coefficient of t^0 t̄^(q*)``.
+_BOUNDARY = {"0": (-1, -1), "1": (-1, -1), "inf": (1, 1)}
+
+
+class _ShiftedEngine:
+    """Regularized integrals ``R_{a,b}[L_u]`` and pole numerators for one (a, b)."""
+
+    def __init__(self, a: int, b: int, values: SphereValues, max_weight: int) -> None:
+        from .sphere_local import LocalExpansion
+
+        self.a, self.b = a, b
+        self.values = values
+        self.max_weight = max_weight
+        self.h = _h_rational(a, b)
+        # the largest powers of t, t̄ needed at each point (boundary terms and poles)
+        need = {"0": max(-a, 0), "1": max(-b, 0), "inf": max(a + b - 1, 0)}
+        y1 = _y1_raw(max_weight + 1, values.store)
+        constants = {
+            "0": lambda w: {} if w else {(): Fraction(1)},
+            "1": lambda w: values.finish(values.z(w)).as_dict(),
+            "inf": lambda w: values.finish(values.k(w)).as_dict(),
+        }
+        self.local = {p: LocalExpansion(p, need[p], need[p], constants[p], y1) for p in need}
+        self.g = {p: _h_local(a, b, p, _BOUNDARY[p][1]) for p in need}
+        self._prim: Dict[Word, List[Tuple[Rational, Word]]] = {}
+
+    def regular(self, u: Word) -> _Raw:
+        """``R_{a,b}[L_u] = (1/π) FP ∫ h(z) h(z̄) L_u d²z`` (step 5), single-valued."""
+        phi = _primitive(self.h, u)
+        acc: _Raw = {}
+        for point, (sign, qstar) in _BOUNDARY.items():
+            g = self.g[point]
+            if not g:
+                continue
+            local = self.local[point]
+            for r, w in phi:
+                principal = _rat_principal(r, point)
+                if not principal:
+                    continue
+                e = None
+                for j, rc in principal.items():
+                    for m, gc in g.items():
+                        q = qstar - m
+                        if q < 0:
+                            continue
+                        if e is None:
+                            e = local.coefficients(w)
+                        x = e.get((j, q, 0))
+                        if x:
+                            _radd(acc, x, sign * rc * gc)
+        return acc
+
+
+_Y1: Dict[Tuple[str, int], Dict[Word, _Raw]] = {}
+
+
+def _y1_raw(max_weight: int, store: TableStore) -> Dict[Word, _Raw]:
+    """y1 up to ``max_weight`` (raw dicts), built with the values at 1 and shared with them."""
+    from .construct import _Construction, _default_weight, _remember_values_at_one
+
+    key = str(store.directory)
+    for (k, n), got in _Y1.items():
+        if k == key and n >= max_weight:
+            return got
+    built = _Construction(_default_weight((0,) * max_weight), store)
+    _remember_values_at_one(built, store)
+    got = {w: built.ring.to_mzv(c).as_dict() for level in built.y1 for w, c in level.items()}
+    _Y1[(key, built.n)] = got
+    return got
+
+
+def _bseries_mul(x: Dict[Tuple[int, int], Fraction], y: Dict[Tuple[int, int], Fraction],
+                 top: int) -> Dict[Tuple[int, int], Fraction]:
+    out: Dict[Tuple[int, int], Fraction] = {}
+    for (p1, q1), c1 in x.items():
+        for (p2, q2), c2 in y.items():
+            p, q = p1 + p2, q1 + q2
+            if p <= top and q <= top:
+                out[(p, q)] = out.get((p, q), 0) + c1 * c2
+    return {k: v for k, v in out.items() if v}
+
+
+def _far_factor(beta: int, sigma: int, top: int, nmax: int) -> List[Dict[Tuple[int, int], Fraction]]:
+    """``F_n``: the coefficient of ``λ^n`` in ``|1 + σt|^(2(β + λ))`` as a series in ``t, t̄``
+    (powers ≤ top each), for n ≤ nmax."""
+    base = {}
+    for p in range(top + 1):
+        for q in range(top + 1):
+            c = _gbinom(beta, p) * _gbinom(beta, q) * sigma ** (p + q)
+            if c:
+                base[(p, q)] = c
+    log1 = {}
+    for m in range(1, top + 1):
+        c = Fraction((-1) ** (m + 1) * sigma ** m, m)
+        log1[(m, 0)] = log1.get((m, 0), 0) + c
+        log1[(0, m)] = log1.get((0, m), 0) + c
+    out = [base]
+    power = {(0, 0): Fraction(1)}
+    for n in range(1, nmax + 1):
+        power = {k: v / n for k, v in _bseries_mul(power, log1, top).items()}
+        out.append(_bseries_mul(base, power, top))
+    return out
+
+
+def _shifted_poles(engine: _ShiftedEngine, x_exp: LinearExponent, y_exp: LinearExponent, word: Word,
+                   order: int, out: Series, upoles: UPoles, add, mono) -> None:
+    """The pole parts at 0, 1, ∞ for any integer shifts (module docstring, step 6)."""
+    a, b = engine.a, engine.b
+    c, vx = Fraction(x_exp.coeff), x_exp.var
+    d, vy = Fraction(y_exp.coeff), y_exp.var
+    lam0 = {vx: c} if vx is not None else {}
+    lam1 = {vy: d} if vy is not None else {}
+    near_inf: Dict[int, Fraction] = {}
+    for lam in (lam0, lam1):
+        for v, x in lam.items():
+            near_inf[v] = near_inf.get(v, 0) - x
+    near_inf = {v: x for v, x in near_inf.items() if x}
+    places = (
+        # point, α (|t|^(2α)), β and σ of |1 + σt|^(2β), near regulator μ, far regulator
+        ("0", a - 1, b - 1, -1, lam0, (vy, d)),
+        ("1", b - 1, a - 1, 1, lam1, (vx, c)),
+        ("inf", -(a + b), b - 1, -1, near_inf, (vy, d)),
+    )
+    where = {"0": "z = 0", "1": "z = 1", "inf": "z = ∞"}
+    for point, alpha, beta, sigma, mu, (far_var, far_coeff) in places:
+        top = -1 - alpha
+        if top < 0:
+            continue
+        if not mu and top >= 1:
+            raise InputError(
+                f"the integral diverges at {where[point]} for all values of the expansion variables",
+                hint="the exponent there needs a multiple of a variable (a power divergence cannot be "
+                     "continued analytically without one)",
+            )
+        nmax = 2 * top if far_var is not None else 0
+        far = _far_factor(beta, sigma, top, nmax)
+        e = engine.local[point].coefficients(word)
+        for n in range(nmax + 1):
+            for k in range(len(word) + 1):
+                acc: _Raw = {}
+                for (p, q), fc in far[n].items():
+                    x = e.get((top - p, top - q, k))
+                    if x:
+                        _radd(acc, x, fc)
+                if not acc:
+                    continue
+                value = MZV(acc) * Fraction((-1) ** k)
+                if not mu:
+                    raise InputError(
+                        f"the integral diverges at {where[point]} for all values of the expansion variables",
+                        hint="the exponent there needs a multiple of a variable, e.g. abs(z)^(-2*S-2)",
+                    )
+                num = mono(far_var, n) if n else (0, 0)
+                scale = far_coeff ** n if n else Fraction(1)
+                if len(mu) == 1:
+                    (v, gamma), = mu.items()
+                    pole = mono(v, -(k + 1))
+                    key = (num[0] + pole[0], num[1] + pole[1])
+                    if key[0] + key[1] <= order:
+                        add(out, key, value * (scale / gamma ** (k + 1)))
+                    continue
+                if c != d:
+                    raise InputError(
+                        "the pole at z = ∞ would be in a combination of the variables other than U = -S-T",
+                        hint="use equal coefficients of the variables in the exponents of |z| and |1-z|",
+                    )
+                # μ = -c (S + T) = c U
+                for (kind, i, j), q in _u_rewrite(num, -(k + 1)).items():
+                    if i + j > order:
+                        continue
+                    add(upoles if kind == "u" else out, (i, j), value * (q * scale / c ** (k + 1)))
+
+
+# ---------------------------------------------------------------------------
 # whole integrands
 # ---------------------------------------------------------------------------
 
@@ -440,3 +781,53 @@ def expand_sphere(
         if progress:
             progress(f"term {index + 1}/{len(terms)}")
     return Expansion.of_integrand(integrand, order, result, u_poles=upoles, domain="sphere")
+
+
+def _mono(var: Optional[int], power: int) -> Tuple[int, int]:
+    if var is None or power == 0:
+        return (0, 0)
+    return (power, 0) if var == 0 else (0, power)
+
+
+def _add_to(target, key, value: MZV) -> None:
+    if not value:
+        return
+    y = target.get(key, MZV()) + value
+    if y:
+        target[key] = y
+    else:
+        target.pop(key, None)
+
+
+def _shifted_series(x_exp: LinearExponent, y_exp: LinearExponent, word: Word, order: int,
+                    values: SphereValues, a: int, b: int) -> Tuple[Series, UPoles]:
+    """:func:`sphere_raw_series` for any integer shifts (steps 5 and 6 of the module docstring)."""
+    c, vx = Fraction(x_exp.coeff), x_exp.var
+    d, vy = Fraction(y_exp.coeff), y_exp.var
+    zeros_w = sum(1 for letter in word if letter == 0)
+    ones_w = len(word) - zeros_w
+    max_m = order if vx is not None else 0
+    longest = len(word) + max(order, 0) + 1
+    engine = values._engines.get((a, b))
+    if engine is None or engine.max_weight < longest:
+        engine = _ShiftedEngine(a, b, values, longest)
+        values._engines[(a, b)] = engine
+    out: Series = {}
+    upoles: UPoles = {}
+    _shifted_poles(engine, x_exp, y_exp, word, order, out, upoles, _add_to, _mono)
+    for m in range(0, max_m + 1):
+        max_n = (order - m) if vy is not None else 0
+        for n in range(0, max_n + 1):
+            e1, e2 = _mono(vx, m), _mono(vy, n)
+            i, j = e1[0] + e2[0], e1[1] + e2[1]
+            if i + j > order:
+                continue
+            acc: _Raw = {}
+            for u in words_with_counts(m + zeros_w, n + ones_w):
+                mult = embeddings(word, u)
+                if mult:
+                    _radd(acc, engine.regular(u), mult)
+            if acc:
+                scale = (c ** m if m else Fraction(1)) * (d ** n if n else Fraction(1))
+                _add_to(out, (i, j), MZV(acc) * scale)
+    return out, upoles
