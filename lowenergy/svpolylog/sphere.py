@@ -7,10 +7,13 @@ We expand, to total order N in the expansion variables (S, T; U = -S-T),
 with ``A = a - 1 + c·v``, ``B = b - 1 + d·v'`` (integers a, b; rationals c, d;
 v, v' expansion variables) and ``F = Σ_w f_w L_w(z)`` a combination of Brown's
 single-valued polylogarithms (:mod:`.construct`; products of L's are
-shuffled into single words because ``L_u L_v = L_{u ш v}``).  Supported
-shifts: ``a, b ≥ 0`` and ``a + b ≤ 1`` (at most a simple power of |z|^-2 at
-infinity), which covers ``|z|^(-2S-2)|1-z|^(-2T-2)`` and the shifts that
-produce a massless U-channel pole.
+shuffled into single words because ``L_u L_v = L_{u ш v}``).  Every pair of
+integers (a, b) is supported, negative ones included (steps 5-6); a
+divergence that no variable regulates (``abs(z)^(-4)`` with no variable,
+exponents whose variables cancel at ∞, a pole at ∞ in a combination other
+than U = -S-T) is refused with a message.  For ``(a, b) ∈ {(0,0), (1,0),
+(0,1)}`` steps 2-4 below are used (faster); the general route reproduces
+them (tests).
 
 Method: single-valued integration
 ---------------------------------
@@ -76,6 +79,74 @@ This is the derivation used by the code; every step is checked by the tests
 
 Consequence: every coefficient (before multiplication by the integrand's own
 MZV constants) lies in the image of sv, the single-valued MZVs.
+
+5. *Any integer shifts: the regular part.*  Split the plane into discs around
+   0, 1, ∞ and the rest.  In a disc the integrand is ``|t|^(2μ)`` (μ the local
+   regulator: λ0 = c·v at 0, λ1 = d·v' at 1, -(λ0+λ1) at ∞, t the local
+   coordinate z, z - 1, 1/z) times a series in ``t, t̄, log|t|²``; a term
+   ``|t|^(2(μ+N)-2) log^k|t|²`` integrates to a function of ``μ + N`` alone:
+   for N = 0 a pure pole in μ plus terms in the disc radius, for N ≠ 0 (the
+   power divergences of a + b ≥ 2 at ∞, or of a < 0 at 0) a function regular
+   at μ = 0 (a *massive* pole at μ = -N, which belongs in a Laurent expansion
+   at S = T = 0 as its Taylor series).  Expanding ``|z|^(2λ0) |1-z|^(2λ1)`` inside
+   the integral (step 1) and dropping, in the cut-off integrals, every term
+   ``ε^N log^j ε`` (N ≠ 0 or j ≥ 1) and ``R^N log^j R`` gives exactly the
+   Taylor coefficients of the analytic continuation (Hadamard finite part
+   FP), so ``I = poles (step 6) + Σ λ0^m λ1^n Σ_u mult(u) R_{a,b}[L_u]`` with
+   ``R_{a,b}[L_u] = (1/π) FP ∫ h(z) h(z̄) L_u d²z``, ``h = z^(a-1) (1-z)^(b-1)``.
+
+   *Primitive.*  ``h`` is a rational function with poles at 0, 1 (partial
+   fractions).  A single-valued primitive ``Φ = Σ_i r_i(z) L_{w_i}(z)`` of
+   ``r(z) L_u(z)`` in z: ``c0/z · L_u -> c0 L_{0u}``, ``c1/(z-1) · L_u ->
+   c1 L_{1u}`` (``∂_z L_{au} = L_u/(z-a)``, :mod:`.construct`), and for the
+   rest ``R' L_u`` integration by parts, ``R L_u - ∫ R/(z - u_1) L_{u_2...}``,
+   which lowers the weight (:func:`_primitive`).
+
+   *Stokes* (Schnetz 2014; Brown & Dupont 2021): ``d(Φ g(z̄) dz̄) = ∂_zΦ g
+   dz∧dz̄`` with ``g = h(z̄)``, ``d²z = (i/2) dz∧dz̄``.  On a circle ``|t| = ε``
+   only ``t^p t̄^(p-1)`` survives the angular integral, with a factor
+   ``ε^(2p)``; the finite part keeps p = 0.  With the orientations (clockwise
+   around 0 and 1 as boundary of the outside; counter-clockwise ``|z| = R``,
+   where ``z^0 z̄^(-1) = t^0 t̄^1``):
+
+       R_{a,b}[L_u] = - [Φ g]_0(t^0 t̄^(-1)) - [Φ g]_1(t^0 t̄^(-1)) + [Φ g]_∞(t^0 t̄^1),
+
+   ``[X]_P(t^p t̄^q)`` the coefficient without logarithms in the expansion at
+   P.  With ``r_i = Σ_j ρ_{i,j} t^(-j) + ...`` and ``g = Σ_m g_m t̄^m`` at P,
+   ``[Φ g]_P(t^0 t̄^q) = Σ_i Σ_{j ≥ 0} Σ_m ρ_{i,j} g_m e^P_{w_i}[j, q - m, 0]``,
+   where ``e^P_w[p, q, k]`` are the coefficients of ``L_w`` at P
+   (:mod:`.sphere_local`; only ``p, q ≥ 0`` occur).  At ∞,
+   ``g = (-1)^(b-1) t̄^(2-a-b) (1-t̄)^(b-1)`` and ``r_i`` grows like
+   ``z^(a+b-1)``: the *subleading* terms ``p, q ≤ a + b - 1`` of ``L_w`` at ∞
+   enter — ``t^j`` from the polynomial growth of Φ, ``t̄^q`` from g.  At 0
+   and 1 only ``a ≤ 0`` resp. ``b ≤ 0`` contribute (``q ≤ -a`` resp. ``-b``).
+   Check: a = b = 0 gives ``Z_sv(0u) - Z_sv(1u)`` of step 3 (from the point 1;
+   at 0 ``L_w(0) = 0``; at ∞ ``g = O(t̄^2)``).
+
+6. *Any integer shifts: the poles.*  Near P the integrand is
+   ``|t|^(2μ) |t|^(2α) |1 + σt|^(2(β + λ')) L_w`` with ``(α, β, σ, λ')`` =
+   ``(a-1, b-1, -1, λ1)`` at 0, ``(b-1, a-1, +1, λ0)`` at 1 and
+   ``(-(a+b), b-1, -1, λ1)`` at ∞ (``d²z = d²t/|t|^4``, ``h(1/t) =
+   t^(2-a-b) (t-1)^(b-1)``).  The pole at μ = 0 comes from the coefficient of
+   ``|t|^(-2) log^k|t|²/k!`` only (the others are the massive poles of step
+   5): with ``n0 = -1 - α`` and ``F_n`` the coefficient of ``λ'^n`` in
+   ``|1 + σt|^(2(β + λ'))``,
+
+       pole = Σ_{n, k} λ'^n (-1)^k / μ^(k+1) Σ_{p, q ≤ n0} F_n[p, q] e^P_w[n0 - p, n0 - q, k].
+
+   So a ≥ 1 (b ≥ 1) removes the pole at 0 (at 1); for a + b ≥ 2 the
+   massless pole at ∞ stays, with a numerator that involves the subleading
+   terms and, through ``λ' = d·T``, powers of T; with
+   ``μ = c·U`` these are rewritten with ``T = -S - U`` into U-pole rows
+   ``S^i U^k`` plus regular terms (:func:`_u_rewrite`).  a < 0 gives a pole at
+   S = 0 with a numerator polynomial in T.  When μ carries no variable and
+   ``n0 ≥ 1`` (a power divergence) or a pole coefficient is non-zero, the
+   integral diverges for all values of the variables: refused.
+
+   Tests: the complex Beta function at shifts (a, b) with a + b up to 4 and
+   negative a or b, exactly to order 8 against the Γ recursion
+   ``γ(x+1) = -x² γ(x)`` (A&S 6.1.15); log insertions as derivatives; ``D(z)²``
+   at a = b = 1 against 2D quadrature (15 digits).
 
 Examples
 --------

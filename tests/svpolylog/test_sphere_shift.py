@@ -252,3 +252,42 @@ def test_general_route_reproduces_the_unshifted_formulas(xs, ys, word):
 def test_unregulated_divergences_are_refused(text, message):
     with pytest.raises(InputError, match=message):
         expand_sphere(sphere(text), 3)
+
+
+# ---------------------------------------------------------------------------
+# command line
+# ---------------------------------------------------------------------------
+
+
+def test_cli_expand_shifted_file(tmp_path):
+    import json
+
+    from typer.testing import CliRunner
+
+    from lowenergy.cli import app
+
+    f = tmp_path / "a1b1.toml"
+    f.write_text('domain = "sphere"\nvariables = ["S", "T"]\nintegrand = "abs(z)^(-2*S)*abs(1-z)^(-2*T)"\n')
+    res = CliRunner().invoke(app, ["expand", str(f), "--order", "3", "--json"])
+    assert res.exit_code == 0, res.output
+    terms = {t["name"]: t for t in json.loads(res.stdout)["terms"]}
+    # S T/(U (1+U)²) · E (test_beta_a1_b1_leading_terms): -S²/U - S - 2 S T + ...
+    pole = [t for t in terms.values() if t.get("kind") == "pole" and t["powers"] == [2, 0, -1]]
+    assert pole and pole[0]["exact"] == "-1"
+    assert terms["c[1,0]"]["exact"] == "-1"
+
+
+def test_cli_unregulated_shift_exit_2_one_line_no_output(tmp_path):
+    from typer.testing import CliRunner
+
+    from lowenergy.cli import app
+
+    f = tmp_path / "bad.toml"
+    f.write_text('domain = "sphere"\nvariables = ["S", "T"]\nintegrand = "abs(z)^(-4)*abs(1-z)^(-2*T-2)"\n')
+    out = tmp_path / "out.csv"
+    res = CliRunner().invoke(app, ["expand", str(f), "--order", "2", "--csv", str(out)])
+    assert res.exit_code == 2
+    assert "bad.toml" in res.output and "diverges at z = 0" in res.output
+    assert "Traceback" not in res.output and not out.exists()
+    lines = [line for line in res.output.splitlines() if line.strip()]
+    assert len([line for line in lines if "diverges" in line]) == 1
