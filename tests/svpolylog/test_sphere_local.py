@@ -74,3 +74,12 @@ def test_subleading_antiholomorphic_terms_at_infinity_are_not_zero(expansions):
     _, _, local = expansions
     e = local["inf"].coefficients((0, 1, 1, 0))
     assert any(e.get((0, q, 0)) for q in (1, 2))
+
+
+@pytest.mark.parametrize("kind", ["sv", "direct"])
+def test_value_at_infinity_two_formulas(kind):
+    # K = φ(Z)^(-1) Z (definition, with products) and K = χ(Z) (z -> z/(z-1), no products);
+    # with the interval values ("sv") the two agree after the sv map (not before)
+    values = SphereValues(kind)
+    for w in [w for n in range(1, 8) for w in product((0, 1), repeat=n)]:
+        assert values.finish(MZV(values.k_raw(w))) == values.finish(MZV(values.k_raw_via_phi(w))), w
