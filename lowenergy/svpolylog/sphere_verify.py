@@ -36,6 +36,7 @@ the U-channel rows.
 from __future__ import annotations
 
 import time
+from fractions import Fraction
 from typing import Dict, List, Mapping, Tuple
 
 import mpmath
@@ -106,6 +107,61 @@ class _LValues:
         return out
 
 
+def _condition_text(const: Fraction, coeffs: Dict[str, Fraction]) -> str:
+    """``const + Σ c_v v > 0`` written as a readable inequality."""
+    coeffs = {v: c for v, c in coeffs.items() if c}
+    if not coeffs:
+        return "true" if const > 0 else "false"
+    flip = all(c < 0 for c in coeffs.values())
+    sign = -1 if flip else 1
+    parts = []
+    for v, c in coeffs.items():
+        c = sign * c
+        mag = "" if abs(c) == 1 else f"{abs(c)}*"
+        if not parts:
+            parts.append(("-" if c < 0 else "") + mag + v)
+        else:
+            parts.append(("- " if c < 0 else "+ ") + mag + v)
+    return f"{' '.join(parts)} {'<' if flip else '>'} {sign * -const}"
+
+
+def convergence_region(integrand: Integrand) -> str:
+    r"""The region where every term of a sphere integrand converges, as text.
+
+    A term ``|z|^(2A) |1-z|^(2B) L_w`` converges at 0, 1 and ∞ when
+    ``A > -1``, ``B > -1`` and ``A + B < -1`` (the logarithms of L_w do
+    not change this).
+
+    >>> from lowenergy.integrand.reader import integrand_from_text
+    >>> head = 'domain = "sphere"\nvariables = ["S", "T"]\n'
+    >>> convergence_region(integrand_from_text(head + 'integrand = "abs(z)^(-2*S-2)*abs(1-z)^(-2*T-2)"'))
+    'the integral converges for S < 0, T < 0, S + T > -1'
+    >>> convergence_region(integrand_from_text(head + 'integrand = "abs(z)^(-2*S)*abs(1-z)^(-2*T)"'))
+    'the integral converges for S < 1, T < 1, S + T > 1'
+    """
+    names = list(integrand.variables)
+    conditions: List[str] = []
+
+    def form(*exps) -> Tuple[Fraction, Dict[str, Fraction]]:
+        const, coeffs = Fraction(0), {}
+        for sign, e in exps:
+            const += sign * e.shift
+            if e.var is not None:
+                coeffs[names[e.var]] = coeffs.get(names[e.var], Fraction(0)) + sign * e.coeff
+        return const, coeffs
+
+    for t in integrand.terms:
+        # A + 1 > 0, B + 1 > 0, -A - B - 1 > 0
+        for (const, coeffs), offset in ((form((1, t.x_exp)), 1), (form((1, t.y_exp)), 1),
+                                        (form((-1, t.x_exp), (-1, t.y_exp)), -1)):
+            text = _condition_text(const + offset, coeffs)
+            if text not in conditions and text != "true":
+                conditions.append(text)
+    if "false" in conditions:
+        return "no point: one term diverges for all values of the variables (the integral exists only by analytic continuation)"
+    return "the integral converges for " + ", ".join(conditions)
+
+
 def sphere_integral(integrand: Integrand, point: Mapping, digits: int = 12, level: int = 3):
     """``(value, error estimate, seconds)`` of the sphere integral at a point.
 
@@ -153,7 +209,7 @@ def sphere_integral(integrand: Integrand, point: Mapping, digits: int = 12, leve
             if alpha <= 0:
                 raise NumericError(
                     "the point lies outside the region where the sphere integral converges",
-                    hint="choose S < 0, T < 0, S + T > -1 (for |z|^(-2S-2)|1-z|^(-2T-2))",
+                    hint=convergence_region(integrand),
                 )
         h = mpmath.mpf(2) ** -level
         qs = [min(1 / alpha, _MAX_RADIAL_POWER) for _, alpha, _ in pieces]

@@ -64,3 +64,18 @@ def test_depth_two_words_at_small_S_T():
         value, err, _ = sphere_integral(integrand, {"S": S, "T": T}, digits=12, level=3)
         assert abs(value - exact) < 1e-11 * abs(exact)
         assert err < 1e-5 * abs(exact)
+
+
+def test_region_hint_follows_the_exponents(tmp_path):
+    # |z|^(-2S-2)|1-z|^(-2T) converges at 0 for S < 0, at 1 for T < 1 and at
+    # ∞ (|z|^(-2S-2T-2)) for S + T > 0; the hint used to quote the region of
+    # the unshifted factor whatever the file said.
+    from typer.testing import CliRunner
+
+    from lowenergy.cli import app
+
+    f = tmp_path / "shifted.toml"
+    f.write_text(HEAD + 'integrand = "abs(z)^(-2*S-2)*abs(1-z)^(-2*T)"\n')
+    res = CliRunner().invoke(app, ["verify", str(f), "--at", "S=-0.05,T=-0.03", "--order", "2"])
+    assert res.exit_code == 2
+    assert "S < 0, T < 1, S + T > 0" in res.output
