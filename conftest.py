@@ -27,6 +27,10 @@ def pytest_configure(config):
 
     path = tempfile.mkdtemp(prefix="lowenergy-test-cache-")
     _SESSION_CACHE.append(path)
+    # kept for the slow checks of high-weight tables the user has built
+    # (tests/zeta/test_high_weight.py); nothing else reads it
+    if "LOWENERGY_CACHE_DIR" in os.environ and "LOWENERGY_USER_CACHE_DIR" not in os.environ:
+        os.environ["LOWENERGY_USER_CACHE_DIR"] = os.environ["LOWENERGY_CACHE_DIR"]
     os.environ["LOWENERGY_CACHE_DIR"] = path
 
 

@@ -304,7 +304,7 @@ def reduce(
 @tables_app.command("build", epilog=_exit_codes())
 @user_errors
 def tables_build(
-    weight: int = typer.Option(12, "--weight", metavar="W", help="build all weights up to this one (2-18)"),
+    weight: int = typer.Option(12, "--weight", metavar="W", help="build all weights up to this one (2-20)"),
     rebuild: bool = typer.Option(False, "--rebuild", help="recompute weights already cached"),
     method: str = typer.Option(
         "auto", "--method", metavar="NAME", help="auto (double shuffle to 12, coaction above) | double-shuffle | motivic"

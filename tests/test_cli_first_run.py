@@ -50,7 +50,7 @@ def test_reduce_builds_its_tables(empty_cache):
     lines = res.stderr.splitlines()
     assert lines[0].startswith("building MZV tables of weights 2-8")
     assert sum("done" in line for line in lines) == 7 and "ready" in lines[-1]
-    assert (empty_cache / "mzv-v2" / "weight-8.json").exists()
+    assert (empty_cache / "mzv-v3" / "weight-8.sqlite").exists()
     res = run("reduce", "zeta(5,3)")  # cached now: silent
     assert res.exit_code == 0 and res.stderr == ""
 
@@ -74,11 +74,11 @@ def test_order_beyond_the_buildable_weights_is_refused_up_front(empty_cache):
     res = run("expand", EX / "open_superstring.toml", "--order", 30)
     assert res.exit_code == 2
     assert "order 30 needs MZV tables of weight 31" in res.stderr
-    assert "up to weight 18" in res.stderr and "ask for order 17 or lower" in res.stderr
+    assert "up to weight 20" in res.stderr and "ask for order 19 or lower" in res.stderr
     assert "tables build" not in res.stderr and "Traceback" not in res.output
     assert not empty_cache.exists()  # nothing was built
     res = run("verify", EX / "open_superstring.toml", "--at", "s=-0.05,t=-0.03", "--order", 40)
-    assert res.exit_code == 2 and "ask for order 17 or lower" in res.stderr
+    assert res.exit_code == 2 and "ask for order 19 or lower" in res.stderr
 
 
 def test_cache_directory_that_is_a_file(tmp_path, monkeypatch):

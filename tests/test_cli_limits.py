@@ -41,7 +41,7 @@ def test_reduce(expression, regularize):
 def test_reduce_names_the_reachable_weight():
     result = runner.invoke(app, ["reduce", NASTY_EXPRESSIONS[0]])
     _one_error_line(result)
-    assert "0 to 18" in result.output
+    assert "0 to 20" in result.output
 
 
 NASTY_INTEGRANDS = [

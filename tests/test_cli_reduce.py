@@ -60,7 +60,7 @@ def test_reduce_pi_display():
         ("zeta(3)/zeta(2)", "non-rational"),
         ("pi^3", "odd power of pi"),
         ("sin(3)", "unknown function"),
-        ("zeta(10,9)", "up to weight 18 only"),
+        ("zeta(11,10)", "up to weight 20 only"),
         ("import os", "column"),
         ("__import__('os')", "column"),
     ],

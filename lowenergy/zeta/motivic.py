@@ -32,6 +32,7 @@ from __future__ import annotations
 
 import time
 from fractions import Fraction
+from math import gcd, isqrt
 from typing import Callable, Dict, Iterator, List, Sequence, Tuple
 
 import numpy as np
@@ -53,6 +54,10 @@ SMALL_PRIMES = (
     67108859, 67108837, 67108819, 67108777, 67108763, 67108757, 67108753, 67108747,
     67108739, 67108729, 67108721, 67108709, 67108693, 67108669, 67108667, 67108661,
 )
+
+#: Words finished together in a serial build (reconstruction, top
+#: coefficient, written out): bounds the rationals held in memory at once.
+CHUNK_WORDS = 8192
 
 
 def f_monomials(weight: int) -> List[FKey]:
@@ -336,6 +341,61 @@ def _deltas(N: int, store, word_ints, nontop_cols, say, client) -> Iterator[Tupl
         client.cancel(pending)
 
 
+def _numeric_setup(index_lists, basis_monos, top_mono, digits, small_bits):
+    """High-precision values of the basis monomials, the top element and the
+    given words (call inside ``mpmath.workdps(digits + 20)``)."""
+    import mpmath
+
+    from .numeric import zeta_numeric, zeta_numeric_many
+
+    gens_needed = sorted({g for m in list(basis_monos) + [top_mono] for g in m})
+    gval = {g: zeta_numeric(g, digits + 20) for g in gens_needed}
+    bval = []
+    for m in basis_monos:
+        v = mpmath.mpf(1)
+        for g in m:
+            v *= gval[g]
+        bval.append(v)
+    topval = mpmath.mpf(1)
+    for g in top_mono:
+        topval *= gval[g]
+    word_vals = zeta_numeric_many(index_lists, digits + 20, small_bits=small_bits)
+    return bval, topval, word_vals
+
+
+def _top_rows(index_lists, coords, word_vals, bval, topval, digits):
+    """The rational multiple of the top element in every given word (see module
+    doc), from the exact coordinates ``coords`` (per word ``[(basis index,
+    numerator, denominator), ...]``, denominators positive).  Returns the top
+    coefficients as ``(numerator, denominator)`` of ``G(w; 1)``.  Call inside
+    ``mpmath.workdps(digits + 20)``."""
+    import mpmath
+
+    N = sum(index_lists[0]) if index_lists else 0
+    tol = mpmath.mpf(10) ** (-(digits - 10))
+    mpf = mpmath.mpf
+    out = []
+    for idx, row in zip(index_lists, coords):
+        sign = -1 if len(idx) % 2 else 1  # ζ = (-1)^depth G
+        approx = mpf(0)
+        scale = abs(word_vals[idx])
+        for a, num, den in row:
+            term = mpf(num) / den * bval[a]
+            approx += term
+            scale = max(scale, abs(term))
+        # G(w) = Σ a_i b_i + c top  and  ζ(idx) = sign·G(w)
+        resid = sign * word_vals[idx] - approx
+        cfloat = resid / topval
+        c = Fraction(mpmath.nstr(cfloat, digits, min_fixed=-10**6, max_fixed=10**6)).limit_denominator(10 ** (digits // 2 - 5))
+        err = abs(resid - (mpf(c.numerator) / c.denominator) * topval)
+        if err > tol * max(scale, abs(topval)):
+            raise InternalError(
+                f"weight {N}: the top coefficient of ζ{idx} is not a small rational at {digits} digits",
+            )
+        out.append((c.numerator, c.denominator))
+    return out
+
+
 def _top_coefficients(
     index_lists: Sequence[Indices],
     coords: Sequence[Dict[int, Fraction]],
@@ -353,49 +413,23 @@ def _top_coefficients(
     """
     import mpmath
 
-    from .numeric import zeta_numeric, zeta_numeric_many
-
-    N = sum(index_lists[0]) if index_lists else 0
-    gens_needed = sorted({g for m in list(basis_monos) + [top_mono] for g in m})
-    reductions: Dict[Indices, Dict[Monomial, Fraction]] = {}
+    raw = [[(a, q.numerator, q.denominator) for a, q in sorted(row.items())] for row in coords]
     with mpmath.workdps(digits + 20):
-        gval = {g: zeta_numeric(g, digits + 20) for g in gens_needed}
-        bval = []
-        for m in basis_monos:
-            v = mpmath.mpf(1)
-            for g in m:
-                v *= gval[g]
-            bval.append(v)
-        topval = mpmath.mpf(1)
-        for g in top_mono:
-            topval *= gval[g]
-        word_vals = zeta_numeric_many(index_lists, digits + 20, small_bits=small_bits)
-        tol = mpmath.mpf(10) ** (-(digits - 10))
-        for idx, row in zip(index_lists, coords):
-            sign = -1 if len(idx) % 2 else 1  # ζ = (-1)^depth G
-            approx = mpmath.mpf(0)
-            scale = abs(word_vals[idx])
-            for a, q in row.items():
-                term = mpmath.mpf(q.numerator) / q.denominator * bval[a]
-                approx += term
-                scale = max(scale, abs(term))
-            # G(w) = Σ a_i b_i + c top  and  ζ(idx) = sign·G(w)
-            resid = sign * word_vals[idx] - approx
-            cfloat = resid / topval
-            c = Fraction(mpmath.nstr(cfloat, digits, min_fixed=-10**6, max_fixed=10**6)).limit_denominator(10 ** (digits // 2 - 5))
-            err = abs(resid - (mpmath.mpf(c.numerator) / c.denominator) * topval)
-            if err > tol * max(scale, abs(topval)):
-                raise InternalError(
-                    f"weight {N}: the top coefficient of ζ{idx} is not a small rational at {digits} digits",
-                )
-            red: Dict[Monomial, Fraction] = {}
-            for a, q in row.items():
-                if q:
-                    red[basis_monos[a]] = sign * q
-            if c:
-                red[top_mono] = red.get(top_mono, Fraction(0)) + sign * c
-            reductions[idx] = {m: v for m, v in red.items() if v}
-    return reductions
+        bval, topval, word_vals = _numeric_setup(index_lists, basis_monos, top_mono, digits, small_bits)
+        tops = _top_rows(index_lists, raw, word_vals, bval, topval, digits)
+    return {idx: _reduction_of(idx, row, top, basis_monos, top_mono) for idx, row, top in zip(index_lists, raw, tops)}
+
+
+def _reduction_of(idx, row, top, basis_monos, top_mono) -> Dict[Monomial, Fraction]:
+    """``{monomial: Fraction}`` of ``ζ(idx)`` from the coordinates of ``G(w; 1)``."""
+    sign = -1 if len(idx) % 2 else 1
+    red: Dict[Monomial, Fraction] = {}
+    for a, num, den in row:
+        if num:
+            red[basis_monos[a]] = Fraction(sign * num, den)
+    if top[0]:
+        red[top_mono] = red.get(top_mono, Fraction(0)) + Fraction(sign * top[0], top[1])
+    return {m: v for m, v in red.items() if v}
 
 
 def reduce_weight_motivic(
@@ -406,10 +440,29 @@ def reduce_weight_motivic(
     digits: int = 80,
     progress: Callable[[str], None] | None = None,
     client=None,
+    open_writer: Callable[[List[Indices]], object] | None = None,
+    chunk_words: int = CHUNK_WORDS,
 ) -> WeightTable:
     """Reduce all convergent MZVs of ``weight`` via the coaction (see module doc).
 
     ``store`` must hold the tables (and f-alphabet images) of all lower weights.
+
+    Serially the words are finished in chunks of ``chunk_words``: exact
+    coordinates by CRT and rational reconstruction (vectorized Garner digits,
+    then one reconstruction per non-zero entry), the top coefficient from the
+    word values computed once for all words, and the chunk handed on.  Only
+    the residues (int32, one array per prime) are held for all words; a chunk
+    whose reconstruction is not confirmed by the last prime asks for one more
+    prime.  The reconstructed rationals do not depend on how many primes were
+    used (a rational of small height is the unique one), so the table is the
+    same as with one global decision.
+
+    ``open_writer(generators)`` (given the final generators of the weight)
+    returns a context manager with ``add_raw(rows)`` and ``position``
+    (:class:`lowenergy.zeta.table.TableWriter`): the reductions are streamed
+    into it and the returned table has ``reductions=None``.  Without it they
+    are collected in memory.
+
     With a ``distributed.Client`` the coaction of each prime is one task (the
     lower tables are sent to every worker once); the rational reconstruction
     and the numerical top coefficients run in chunks of words, one task each
@@ -417,6 +470,7 @@ def reduce_weight_motivic(
     identical to the serial one.
     """
     import flint
+    import mpmath
 
     from ..cluster import worker_count
     from .numeric import _small_bits
@@ -427,6 +481,7 @@ def reduce_weight_motivic(
     fbasis = {k: {key: i for i, key in enumerate(f_monomials(k))} for k in range(0, N + 1)}
     top_key = (0, (N,)) if N % 2 else (N // 2, ())
     nontop = [key for key in fbasis[N] if key != top_key]
+    nontop_pos = {key: i for i, key in enumerate(nontop)}
     nontop_cols = np.array([fbasis[N][key] for key in nontop], dtype=np.int64)
 
     index_lists = admissible_indices(N)
@@ -436,98 +491,157 @@ def reduce_weight_motivic(
     products = monomials_of_weight(lower_generators, N)
     top_mono: Monomial = (((N,),) if N % 2 else tuple([(2,)] * (N // 2)))
     prod_nontop = [m for m in products if m != top_mono]
+    prod_f = [monomial_falphabet(mono, store) for mono in prod_nontop]
 
     candidates = sorted(range(len(index_lists)), key=lambda i: generator_preference(index_lists[i]))
 
-    # words in chunks, one task each on a cluster (reconstruction, numerics);
-    # one chunk per worker: chunks recompute the partial sums they share
-    # (measured at weight 15: 2 chunks cost 1.4x the numerics of one, 4 chunks 1.9x)
-    n_chunks = 1 if client is None else min(len(index_lists), worker_count(client))
-    bounds = [len(index_lists) * i // n_chunks for i in range(n_chunks + 1)]
-    per_prime = []  # (p, coordinates mod p (n_words × n_basis), generator rows)
-    new_gens: List[Indices] | None = None
-    gen_rows: List[int] | None = None
+    residues: List[Tuple[int, np.ndarray]] = []  # (p, coordinates mod p: n_words × n_basis, int32)
+    choice: Dict[str, List] = {}
     deltas = _deltas(N, store, word_ints, nontop_cols, say, client)
-    try:
-        for p, delta in deltas:
-            # rows of the basis other than the top: products ...
-            prod_rows = np.zeros((len(prod_nontop), len(nontop)), dtype=np.int64)
-            for a, mono in enumerate(prod_nontop):
-                for key, c in monomial_falphabet(mono, store).items():
-                    if key != top_key:
-                        prod_rows[a, nontop.index(key)] = to_mod(c, p)
-            # ... and new generators, greedily by preference (same prime-independent choice)
-            if gen_rows is None:
-                mat = [list(map(int, row)) for row in prod_rows]
-                rank = flint.nmod_mat(mat, p).rank() if mat else 0
-                if rank != len(prod_nontop):
-                    raise InternalError(f"products are dependent at weight {N}: lower tables inconsistent")
-                chosen: List[int] = []
-                need = len(nontop) - rank
-                for i in candidates:
-                    if len(chosen) == need:
-                        break
-                    trial = mat + [list(map(int, delta[i]))]
-                    r2 = flint.nmod_mat(trial, p).rank()
-                    if r2 > rank:
-                        mat, rank = trial, r2
-                        chosen.append(i)
-                if rank != len(nontop):
-                    raise InternalError(f"the coaction images do not span weight {N}; tables inconsistent")
-                gen_rows = chosen
-                new_gens = [index_lists[i] for i in chosen]
-            # basis element ζ(g) = (-1)^depth G(w_g): flip the rows of odd depth
-            gen_signs = np.array([(-1) ** len(index_lists[i]) for i in gen_rows], dtype=np.int64)
-            gen_part = (delta[gen_rows] * gen_signs[:, None]) % p
-            basis_rows = np.vstack([prod_rows, gen_part]) if len(prod_nontop) else gen_part
-            if len(nontop):
-                binv = flint.nmod_mat([list(map(int, row)) for row in basis_rows], p).inv()
-                binv_np = np.array([[int(binv[i, j]) for j in range(binv.ncols())] for i in range(binv.nrows())], dtype=np.int64)
-            else:  # weights 3 and 4: every word is a rational multiple of the top element
-                binv_np = np.zeros((0, 0), dtype=np.int64)
-            coords = np.zeros((len(index_lists), binv_np.shape[1]), dtype=np.int64)
-            for start in range(0, delta.shape[1], 32):
-                coords = (coords + delta[:, start : start + 32] @ binv_np[start : start + 32]) % p
-            gen_delta = delta[gen_rows]
-            per_prime.append((p, coords, gen_delta))
-            if len(per_prime) >= 3:
-                coords_q = _reconstruct(per_prime, bounds, client)
-                if coords_q is not None:
+
+    def next_prime() -> None:
+        try:
+            p, delta = next(deltas)
+        except StopIteration:
+            raise InternalError(
+                f"rational reconstruction failed at weight {N} with all {len(SMALL_PRIMES)} primes; need more primes"
+            ) from None
+        # rows of the basis other than the top: products ...
+        prod_rows = np.zeros((len(prod_nontop), len(nontop)), dtype=np.int64)
+        for a, fimage in enumerate(prod_f):
+            for key, c in fimage.items():
+                if key != top_key:
+                    prod_rows[a, nontop_pos[key]] = to_mod(c, p)
+        # ... and new generators, greedily by preference (same prime-independent choice)
+        if "rows" not in choice:
+            mat = [list(map(int, row)) for row in prod_rows]
+            rank = flint.nmod_mat(mat, p).rank() if mat else 0
+            if rank != len(prod_nontop):
+                raise InternalError(f"products are dependent at weight {N}: lower tables inconsistent")
+            chosen: List[int] = []
+            need = len(nontop) - rank
+            for i in candidates:
+                if len(chosen) == need:
                     break
+                trial = mat + [list(map(int, delta[i]))]
+                r2 = flint.nmod_mat(trial, p).rank()
+                if r2 > rank:
+                    mat, rank = trial, r2
+                    chosen.append(i)
+            if rank != len(nontop):
+                raise InternalError(f"the coaction images do not span weight {N}; tables inconsistent")
+            choice["rows"] = chosen
+        gen_rows = choice["rows"]
+        # basis element ζ(g) = (-1)^depth G(w_g): flip the rows of odd depth
+        gen_signs = np.array([(-1) ** len(index_lists[i]) for i in gen_rows], dtype=np.int64)
+        gen_part = (delta[gen_rows] * gen_signs[:, None]) % p
+        basis_rows = np.vstack([prod_rows, gen_part]) if len(prod_nontop) else gen_part
+        if len(nontop):
+            binv = flint.nmod_mat([list(map(int, row)) for row in basis_rows], p).inv()
+            binv_np = np.array([[int(binv[i, j]) for j in range(binv.ncols())] for i in range(binv.nrows())], dtype=np.int64)
+        else:  # weights 3 and 4: every word is a rational multiple of the top element
+            binv_np = np.zeros((0, 0), dtype=np.int64)
+        coords = np.zeros((len(index_lists), binv_np.shape[1]), dtype=np.int64)
+        for start in range(0, delta.shape[1], 32):
+            coords = (coords + delta[:, start : start + 32] @ binv_np[start : start + 32]) % p
+        del delta
+        residues.append((p, coords.astype(np.int32)))  # entries < 2^26
+
+    def final_generators() -> List[Indices]:
+        gens = [index_lists[i] for i in choice["rows"]]
+        if N % 2 and (N,) not in gens:
+            gens = [(N,)] + gens
+        return sorted(gens, key=generator_preference)
+
+    small = max(_small_bits(idx) for idx in index_lists)  # one precision for all words
+    try:
+        if client is not None:
+            # cluster: reconstruction and numerics as tasks on chunks of words;
+            # one chunk per worker: chunks recompute the partial sums they share
+            # (measured at weight 15: 2 chunks cost 1.4x the numerics of one, 4 chunks 1.9x)
+            n_chunks = min(len(index_lists), worker_count(client))
+            bounds = [len(index_lists) * i // n_chunks for i in range(n_chunks + 1)]
+            coords_q = None
+            while coords_q is None:
+                next_prime()
+                if len(residues) >= 3:
+                    coords_q = _reconstruct([(p, r, None) for p, r in residues], bounds, client)
+            t1 = time.perf_counter()
+            say(f"weight {N}: fixing {len(index_lists)} top coefficients numerically")
+            basis_monos: List[Monomial] = list(prod_nontop) + [(index_lists[i],) for i in choice["rows"]]
+            futures = [
+                client.submit(_top_coefficients_packed, index_lists[a:b], part, basis_monos, top_mono, digits, small,
+                              pure=False)
+                for (a, b), part in zip(zip(bounds, bounds[1:]), coords_q)
+            ]
+            try:
+                packed = client.gather(futures)
+            finally:
+                client.cancel(futures + list(coords_q))
+            reductions = {
+                idx: {mono: Fraction(n, d) for mono, n, d in terms} for part in packed for idx, terms in part
+            }
+            del packed
+            if open_writer is not None:
+                with open_writer(final_generators()) as writer:
+                    writer.add(reductions)
+                reductions = None
         else:
-            raise InternalError(f"rational reconstruction failed at weight {N}; need more primes")
+            for _ in range(3):  # the fewest primes a weight ever needs
+                next_prime()
+            t1 = time.perf_counter()
+            basis_monos = list(prod_nontop) + [(index_lists[i],) for i in choice["rows"]]
+            say(f"weight {N}: numerical values of {len(index_lists)} words")
+            with mpmath.workdps(digits + 20):
+                bval, topval, word_vals = _numeric_setup(index_lists, basis_monos, top_mono, digits, small)
+                reductions = {} if open_writer is None else None
+                writer_cm = open_writer(final_generators()) if open_writer is not None else None
+                writer = writer_cm.__enter__() if writer_cm is not None else None
+                try:
+                    if writer is not None:
+                        signed_pos = [writer.position[m] for m in basis_monos]
+                        top_pos = writer.position[top_mono]
+                    for start in range(0, len(index_lists), chunk_words):
+                        stop = min(start + chunk_words, len(index_lists))
+                        say(f"weight {N}: words {start + 1}-{stop} of {len(index_lists)} ({len(residues)} primes)")
+                        while True:
+                            rows = _reconstruct_rows([(p, r[start:stop]) for p, r in residues])
+                            if rows is not None:
+                                break
+                            next_prime()
+                        chunk = index_lists[start:stop]
+                        tops = _top_rows(chunk, rows, word_vals, bval, topval, digits)
+                        if writer is None:
+                            for idx, row, top in zip(chunk, rows, tops):
+                                reductions[idx] = _reduction_of(idx, row, top, basis_monos, top_mono)
+                        else:
+                            out = []
+                            for idx, row, top in zip(chunk, rows, tops):
+                                sign = -1 if len(idx) % 2 else 1
+                                terms = [(signed_pos[a], sign * num, den) for a, num, den in row]
+                                if top[0]:  # the top monomial is never among basis_monos
+                                    terms.append((top_pos, sign * top[0], top[1]))
+                                terms.sort()
+                                out.append((idx, terms))
+                            writer.add_raw(out)
+                        del rows, tops
+                except BaseException:
+                    if writer_cm is not None:
+                        import sys
+
+                        writer_cm.__exit__(*sys.exc_info())
+                    raise
+                if writer_cm is not None:
+                    writer_cm.__exit__(None, None, None)
     finally:
         deltas.close()  # cancels primes computed ahead on a cluster
-    t1 = time.perf_counter()
-
-    # ---- numerics: the top coefficient of every word ------------------------
-    say(f"weight {N}: fixing {len(index_lists)} top coefficients numerically")
-    basis_monos: List[Monomial] = list(prod_nontop) + [(g,) for g in new_gens]
-    # one precision for all words, whichever chunk they are computed in
-    small = max(_small_bits(idx) for idx in index_lists)
-    if client is None:
-        reductions = _top_coefficients(index_lists, coords_q, basis_monos, top_mono, digits, small)
-    else:
-        futures = [
-            client.submit(_top_coefficients_packed, index_lists[a:b], part, basis_monos, top_mono, digits, small,
-                          pure=False)
-            for (a, b), part in zip(zip(bounds, bounds[1:]), coords_q)
-        ]
-        try:
-            packed = client.gather(futures)
-        finally:
-            client.cancel(futures + list(coords_q))
-        reductions = {
-            idx: {mono: Fraction(n, d) for mono, n, d in terms} for part in packed for idx, terms in part
-        }
     t2 = time.perf_counter()
+    new_gens = final_generators()
     # generators themselves must map to themselves
-    for g in new_gens:
-        if reductions[g] != {(g,): Fraction(1)}:
-            raise InternalError(f"weight {N}: generator ζ{g} does not reduce to itself")
-    if N % 2 and (N,) not in new_gens:
-        new_gens = [(N,)] + new_gens
-    new_gens.sort(key=generator_preference)
+    if reductions is not None:
+        for g in new_gens:
+            if g != (N,) and reductions[g] != {(g,): Fraction(1)}:
+                raise InternalError(f"weight {N}: generator ζ{g} does not reduce to itself")
     dimension = len(basis_monos) + 1
     return WeightTable(
         weight=N,
@@ -538,11 +652,71 @@ def reduce_weight_motivic(
             "method": "motivic",
             "coaction_s": t1 - t0,
             "numerics_s": t2 - t1,
-            "primes": len(per_prime),
+            "primes": len(residues),
             "digits": digits,
             "words": len(index_lists),
         },
     )
+
+
+def _reconstruct_rows(per_prime) -> List[List[Tuple[int, int, int]]] | None:
+    """Exact coordinates of a chunk of words from their residues modulo the
+    primes in ``per_prime`` (``[(p, rows)]``): all but the last reconstruct,
+    the last confirms.  Per word ``[(column, numerator, denominator), ...]``
+    (columns ascending, zeros left out, denominators positive); None if any
+    entry fails (more primes needed).
+
+    Garner's mixed-radix digits are computed with numpy for all non-zero
+    entries at once (every product of two residues stays below 2^52); only
+    the big-integer assembly and the half-extended Euclid of
+    :func:`lowenergy.linalg.rational_reconstruct` run per entry.
+    """
+    primes = [p for p, _ in per_prime[:-1]]
+    p_check, check = per_prime[-1]
+    res = [np.asarray(r, dtype=np.int64) for _, r in per_prime[:-1]]
+    check = np.asarray(check, dtype=np.int64)
+    n_words = check.shape[0]
+    nz = np.zeros(check.shape, dtype=bool)
+    for r in res:
+        nz |= r != 0
+    if np.any(check[~nz]):  # reconstructed 0, but not 0 modulo the check prime
+        return None
+    wi, col = np.nonzero(nz)
+    vals = [r[wi, col] for r in res]
+    del res, nz
+    # mixed radix: x = d0 + d1 P1 + d2 P2 + ..., P_j = p_0 ... p_{j-1}
+    radix = [1]
+    for p in primes[:-1]:
+        radix.append(radix[-1] * p)
+    modulus = radix[-1] * primes[-1]
+    digits = [vals[0]]
+    for i in range(1, len(primes)):
+        p = primes[i]
+        acc = np.zeros_like(vals[i])
+        for j in range(i):
+            acc = (acc + digits[j] * (radix[j] % p)) % p
+        digits.append(((vals[i] - acc) % p) * pow(radix[i] % p, -1, p) % p)
+    bound = isqrt(modulus // 2)
+    digit_lists = [d.tolist() for d in digits]
+    checks = check[wi, col].tolist()
+    rows: List[List[Tuple[int, int, int]]] = [[] for _ in range(n_words)]
+    for k, (w, c) in enumerate(zip(wi.tolist(), col.tolist())):
+        x = 0
+        for d, r in zip(digit_lists, radix):
+            x += d[k] * r
+        # rational reconstruction: half-extended Euclid on (modulus, x)
+        r0, r1, s0, s1 = modulus, x, 0, 1
+        while r1 > bound:
+            q = r0 // r1
+            r0, r1 = r1, r0 - q * r1
+            s0, s1 = s1, s0 - q * s1
+        if s1 == 0 or abs(s1) > bound or gcd(r1, abs(s1)) != 1:
+            return None
+        num, den = (r1, s1) if s1 > 0 else (-r1, -s1)
+        if (num - checks[k] * den) % p_check:
+            return None
+        rows[w].append((c, num, den))
+    return rows
 
 
 def _top_coefficients_packed(index_lists, coords, basis_monos, top_mono, digits, small_bits):

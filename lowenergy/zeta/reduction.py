@@ -38,7 +38,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Callable, Dict, List, Sequence, Tuple
+from typing import Callable, Dict, List, Optional, Sequence, Tuple
 
 from ..errors import InternalError
 from ..linalg import crt_rational, to_mod
@@ -60,6 +60,7 @@ __all__ = [
     "generator_preference",
     "monomials_of_weight",
     "expand_monomial",
+    "monomial_key",
 ]
 
 # A monomial in the generators: a sorted tuple of generator index lists, with
@@ -121,14 +122,15 @@ class WeightTable:
         New generators of this weight (index lists), most preferred first.
     reductions:
         ``{index list: {monomial: Fraction}}`` for every convergent index
-        list of weight N.
+        list of weight N, or None when a build streamed them straight to the
+        table file (:func:`lowenergy.zeta.motivic.reduce_weight_motivic`).
     dimension:
         Dimension of the weight-N space found (``#words - rank``).
     """
 
     weight: int
     generators: List[Indices]
-    reductions: Dict[Indices, Dict[Monomial, Fraction]]
+    reductions: Optional[Dict[Indices, Dict[Monomial, Fraction]]]
     dimension: int
     stats: Dict[str, float] = field(default_factory=dict)
 

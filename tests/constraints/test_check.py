@@ -278,10 +278,10 @@ def test_sigma_of_a_non_symmetric_candidate_warns(open_string):
 
 
 def test_numeric_fallback_beyond_the_tables(zeta2_candidate):
-    # tables are built on demand up to weight 18 (lowenergy.zeta.table.MAX_WEIGHT);
-    # ζ(3,17) has weight 20 and ζ(3,16) weight 19
-    cs = cset(eq("ok", "c[0,1]*zeta(3,17)", "zeta(2)*zeta(3,17)"), eq("bad", "c[0,1]*zeta(3,17)", "zeta(3,17)"),
-              eq("mixed", "c[0,1] - zeta(3,16)", "zeta(2) - zeta(3,16)"))
+    # tables are built on demand up to weight 20 (lowenergy.zeta.table.MAX_WEIGHT);
+    # ζ(3,19) has weight 22 and ζ(3,18) weight 21
+    cs = cset(eq("ok", "c[0,1]*zeta(3,19)", "zeta(2)*zeta(3,19)"), eq("bad", "c[0,1]*zeta(3,19)", "zeta(3,19)"),
+              eq("mixed", "c[0,1] - zeta(3,18)", "zeta(2) - zeta(3,18)"))
     report = check(zeta2_candidate, cs)
     for name, status in (("ok", PASS), ("bad", FAIL), ("mixed", PASS)):
         r = report[name]

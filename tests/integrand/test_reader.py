@@ -319,7 +319,7 @@ BAD = [
     ("malformed TOML", f'integrand = "{KN}"\ntitle = \n', ParseError, "malformed TOML", 2, None),
     ("unterminated string", 'title = "a"\nintegrand = "x\n', ParseError, "malformed TOML", 2, None),
     ("two variables after combining", expr_file("x^(-s-1)*x^(-t)"), InputError, "both s and t", 1, 14),
-    ("beyond the tables", expr_file("zeta(10,9)*x"), TableError, "up to weight 18", 1, 14),
+    ("beyond the tables", expr_file("zeta(11,10)*x"), TableError, "up to weight 20", 1, 14),
     ("huge exponent", expr_file("x^(-s-1)*s^65"), InputError, "larger than 64", 1, 25),
     ("huge shift", expr_file("x^(-s-100)"), InputError, "larger than 64", 1, 14),
     ("empty integrand", 'integrand = ""\n', ParseError, "empty expression", 1, None),

@@ -184,8 +184,8 @@ def test_weight_beyond_table_message(tmp_path):
     assert not list(tmp_path.iterdir())
     # beyond the buildable weights: the limit, and no command that would refuse
     with pytest.raises(TableError) as err:
-        zeta(10, 9)
-    assert "up to weight 18" in str(err.value) and "tables build" not in str(err.value)
+        zeta(11, 10)
+    assert "up to weight 20" in str(err.value) and "tables build" not in str(err.value)
 
 
 # --- property tests (hypothesis) -------------------------------------------
