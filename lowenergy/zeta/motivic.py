@@ -363,32 +363,53 @@ def _numeric_setup(index_lists, basis_monos, top_mono, digits, small_bits):
     return bval, topval, word_vals
 
 
+def _fixed(x, bits: int) -> int:
+    """``floor(x · 2^bits)`` of an mpmath number, as an integer."""
+    man, exp = x.man_exp
+    shift = exp + bits
+    return man << shift if shift >= 0 else man >> -shift
+
+
 def _top_rows(index_lists, coords, word_vals, bval, topval, digits):
     """The rational multiple of the top element in every given word (see module
     doc), from the exact coordinates ``coords`` (per word ``[(basis index,
     numerator, denominator), ...]``, denominators positive).  Returns the top
     coefficients as ``(numerator, denominator)`` of ``G(w; 1)``.  Call inside
-    ``mpmath.workdps(digits + 20)``."""
+    ``mpmath.workdps(digits + 20)``.
+
+    The sums run on fixed-point integers (the values times 2^bits, ``bits``
+    the working precision): each term costs one integer product and one
+    floor division instead of several mpmath operations (five times faster
+    at weight 15, measured).  Every floor errs by less than 2^-bits, far below
+    the tolerance 10^-(digits-10) of the check, and the rational is the best
+    approximation with denominator below 10^(digits/2 - 5), which the check
+    then confirms; so the coefficients are the ones the check certifies,
+    whichever rounding produced the approximation.
+    """
     import mpmath
 
     N = sum(index_lists[0]) if index_lists else 0
-    tol = mpmath.mpf(10) ** (-(digits - 10))
-    mpf = mpmath.mpf
+    bits = mpmath.mp.prec
+    fb = [_fixed(v, bits) for v in bval]
+    ftop = _fixed(topval, bits)
+    max_den = 10 ** (digits // 2 - 5)
+    tol_inv = 10 ** (digits - 10)
     out = []
     for idx, row in zip(index_lists, coords):
         sign = -1 if len(idx) % 2 else 1  # ζ = (-1)^depth G
-        approx = mpf(0)
-        scale = abs(word_vals[idx])
+        value = _fixed(word_vals[idx], bits)
+        approx = 0
+        scale = abs(value)
         for a, num, den in row:
-            term = mpf(num) / den * bval[a]
+            term = (num * fb[a]) // den
             approx += term
-            scale = max(scale, abs(term))
+            if abs(term) > scale:
+                scale = abs(term)
         # G(w) = Σ a_i b_i + c top  and  ζ(idx) = sign·G(w)
-        resid = sign * word_vals[idx] - approx
-        cfloat = resid / topval
-        c = Fraction(mpmath.nstr(cfloat, digits, min_fixed=-10**6, max_fixed=10**6)).limit_denominator(10 ** (digits // 2 - 5))
-        err = abs(resid - (mpf(c.numerator) / c.denominator) * topval)
-        if err > tol * max(scale, abs(topval)):
+        resid = sign * value - approx
+        c = Fraction(resid, ftop).limit_denominator(max_den)
+        # |resid - c top| ≤ 10^-(digits-10) max(scale, |top|)
+        if abs(resid * c.denominator - c.numerator * ftop) * tol_inv > max(scale, abs(ftop)) * c.denominator:
             raise InternalError(
                 f"weight {N}: the top coefficient of ζ{idx} is not a small rational at {digits} digits",
             )
