@@ -24,6 +24,7 @@ module.  Checked:
 from __future__ import annotations
 
 import json
+import sqlite3
 from pathlib import Path
 
 import pytest
@@ -58,10 +59,14 @@ def _task_names(client, run):
 def _table_files(directory: Path, max_weight: int):
     out = {}
     for w in range(2, max_weight + 1):
-        for path in (directory / f"weight-{w}.json", directory / f"weight-{w}.meta.json"):
-            data = json.loads(path.read_text())
-            data.pop("stats")  # timings
-            out[path.name] = data
+        meta = directory / f"weight-{w}.meta.json"
+        data = json.loads(meta.read_text())
+        data.pop("stats")  # timings
+        out[meta.name] = data
+        with sqlite3.connect(directory / f"weight-{w}.sqlite") as conn:  # the reductions, row by row
+            out[f"weight-{w}.sqlite"] = [
+                conn.execute(f"SELECT * FROM {table} ORDER BY 1").fetchall() for table in ("info", "basis", "reductions")
+            ]
     return out
 
 
