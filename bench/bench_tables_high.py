@@ -80,9 +80,9 @@ def main() -> None:
             extra += " (converted from format 2)"
         print(f"  weight {w}: {size / 1e6:8.1f} MB on disk, {2 ** (w - 2):7d} words, total {st.get('total_s', 0):.0f} s wall; {extra}")
     if top >= 14:
-        idx = (top - 9, 9) if top > 11 else (top - 2, 2)
+        idx = (top - 10, 8, 2)  # a depth-3 word with many terms
         print(f"one reduction of weight {top}, fresh process (Python API), zeta{idx}: {probe(directory, idx)}")
-        expr = f"zeta({idx[0]},{idx[1]})"
+        expr = "zeta(" + ",".join(map(str, idx)) + ")"
         print(f"`lowenergy reduce \"{expr}\"`, fresh process: {cli_probe(directory, expr)}")
     if len(rows) >= 2:
         (w1, s1, _), (w2, s2, _) = rows[-2], rows[-1]

@@ -466,9 +466,11 @@ def reduce_weight_motivic(
 
     residues: List[Tuple[int, np.ndarray]] = []  # (p, coordinates mod p: n_words × n_basis, int32)
     choice: Dict[str, List] = {}
+    clock = {"coaction": 0.0, "reconstruct": 0.0, "values": 0.0, "top": 0.0}  # seconds per step
     deltas = _deltas(N, store, word_ints, nontop_cols, say, client)
 
     def next_prime() -> None:
+        started = time.perf_counter()
         try:
             p, delta = next(deltas)
         except StopIteration:
@@ -515,6 +517,7 @@ def reduce_weight_motivic(
             coords = (coords + delta[:, start : start + 32] @ binv_np[start : start + 32]) % p
         del delta
         residues.append((p, coords.astype(np.int32)))  # entries < 2^26
+        clock["coaction"] += time.perf_counter() - started
 
     def final_generators() -> List[Indices]:
         gens = [index_lists[i] for i in choice["rows"]]
@@ -562,7 +565,9 @@ def reduce_weight_motivic(
             basis_monos = list(prod_nontop) + [(index_lists[i],) for i in choice["rows"]]
             say(f"weight {N}: numerical values of {len(index_lists)} words")
             with mpmath.workdps(digits + 20):
+                started = time.perf_counter()
                 bval, topval, word_vals = _numeric_setup(index_lists, basis_monos, top_mono, digits, small)
+                clock["values"] += time.perf_counter() - started
                 reductions = {} if open_writer is None else None
                 writer_cm = open_writer(final_generators()) if open_writer is not None else None
                 writer = writer_cm.__enter__() if writer_cm is not None else None
@@ -574,12 +579,16 @@ def reduce_weight_motivic(
                         stop = min(start + chunk_words, len(index_lists))
                         say(f"weight {N}: words {start + 1}-{stop} of {len(index_lists)} ({len(residues)} primes)")
                         while True:
+                            started = time.perf_counter()
                             rows = _reconstruct_rows([(p, r[start:stop]) for p, r in residues])
+                            clock["reconstruct"] += time.perf_counter() - started
                             if rows is not None:
                                 break
                             next_prime()
                         chunk = index_lists[start:stop]
+                        started = time.perf_counter()
                         tops = _top_rows(chunk, rows, word_vals, bval, topval, digits)
+                        clock["top"] += time.perf_counter() - started
                         if writer is None:
                             for idx, row, top in zip(chunk, rows, tops):
                                 reductions[idx] = _reduction_of(idx, row, top, basis_monos, top_mono)
@@ -624,6 +633,9 @@ def reduce_weight_motivic(
             "primes": len(residues),
             "digits": digits,
             "words": len(index_lists),
+            # serial builds: wall seconds of each step (the coaction of all primes,
+            # CRT + reconstruction, the numerical word values, the top coefficients)
+            **({f"{k}_total_s": v for k, v in clock.items()} if client is None else {}),
         },
     )
 
