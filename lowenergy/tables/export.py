@@ -61,7 +61,7 @@ import mpmath
 from ..errors import InputError, LowEnergyError, ParseError
 from ..fileio import write_atomic
 from ..limits import MAX_CSV_BYTES, MAX_CSV_ROWS, MAX_DECIMAL_EXPONENT, MAX_NUMERIC_DIGITS, MAX_NUMERIC_WORK
-from ..parse import Mul, Num, Pow, Sym, parse_expression
+from ..parse import Num, Pow, Product, Sym, parse_expression
 from ..expansion.result import u_pole_name
 from ..zeta.element import MZV
 from .bases import (
@@ -498,12 +498,11 @@ class _CsvReader:
         except LowEnergyError as err:
             err.hint = err.hint or hint
             raise
-        factors = []
-        stack = [tree]
-        while stack:
+        factors, stack = [], [tree]
+        while stack:  # the factors of products, parenthesized ones included (a divisor is not a factor)
             node = stack.pop()
-            if isinstance(node, Mul):
-                stack += [node.right, node.left]
+            if isinstance(node, Product) and "/" not in node.ops:
+                stack += reversed(node.items)
             else:
                 factors.append(node)
         for f in factors:
