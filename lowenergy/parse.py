@@ -132,6 +132,7 @@ __all__ = [
     "LEAVES",
     "Token",
     "tokenize",
+    "coefficient_reference",
     "parse_expression",
     "walk",
     "children",
@@ -954,6 +955,30 @@ def tokenize(text: str, *, coefficients: Optional[CoefficientCheck] = None) -> L
         assert tokens[-1].error is not None
         raise tokens[-1].error
     return tokens[:-1]
+
+
+def coefficient_reference(text: str) -> Optional[Coef]:
+    """The :class:`Coef` when ``text`` is one coefficient reference (blanks around it allowed), else None.
+
+    Table headers and CSV rows name coefficients in the same syntax as
+    constraint relations; which families and indices are meaningful is the
+    caller's business.
+
+    >>> coefficient_reference(" sym[3, 1] ")
+    Coef('sym', (3, 1))
+    >>> coefficient_reference("c[1,0] + 1") is None, coefficient_reference("c[1,x]") is None
+    (True, True)
+    """
+    if not isinstance(text, str) or len(text) > MAX_INPUT_LENGTH:
+        return None
+    try:
+        tokens = tokenize(text.strip(), coefficients=lambda *reference: None)
+    except LowEnergyError:
+        return None
+    if len(tokens) != 1 or tokens[0].kind != "coef":
+        return None
+    family, indices = tokens[0].value  # type: ignore[misc]
+    return Coef(family, indices)
 
 
 def _tokenize(text: str, coefficients: Optional[CoefficientCheck] = None) -> List[Token]:

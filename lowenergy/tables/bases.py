@@ -79,7 +79,7 @@ from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Un
 
 from ..errors import InputError, InternalError
 from ..linalg import DependentColumn, solve_gram
-from ..parse import Call, Node, Num, Pow, Product, Rules, Sym, evaluate, parse_expression, to_text
+from ..parse import Call, Node, Num, Pow, Product, Rules, Sym, coefficient_reference, evaluate, parse_expression, to_text
 from ..poly import add as poly_add, mul as poly_mul, power as poly_power, total_degree as poly_degree, truncated as poly_truncated
 from ..zeta.element import MZV
 from ..zeta.format import join_terms, term_text
@@ -130,7 +130,6 @@ _MAX_EXPONENT = 256
 # names
 # --------------------------------------------------------------------------
 
-_NAME_RE = re.compile(r"^\s*(c|sym|sigma)\[\s*(-?\d{1,6})\s*,\s*(-?\d{1,6})\s*\]\s*$")
 
 
 def coefficient_name(i: int, j: int) -> str:
@@ -148,15 +147,17 @@ def element_name(kind: str, a: int, b: int) -> str:
 def parse_element_name(text: str) -> Optional[Tuple[str, int, int]]:
     """``("c" | "sym" | "sigma", a, b)`` for a built-in name, else ``None``.
 
-    Blanks around the numbers are tolerated; ``sym`` needs ``a >= b >= 0``
+    The syntax is that of coefficient references in the expression grammar
+    (:func:`lowenergy.parse.coefficient_reference`): blanks around the
+    numbers are tolerated; ``sym`` needs ``a >= b >= 0``
     and ``sigma`` needs ``a, b >= 0`` (otherwise ``None``).
     """
-    if not isinstance(text, str):
+    ref = coefficient_reference(text)
+    if ref is None or ref.family not in ("c", "sym", "sigma") or len(ref.indices) != 2:
         return None
-    m = _NAME_RE.match(text)
-    if not m:
+    kind, (a, b) = ref.family, ref.indices
+    if max(abs(a), abs(b)) >= 10**6:
         return None
-    kind, a, b = m.group(1), int(m.group(2)), int(m.group(3))
     if kind == "sym" and not (a >= b >= 0):
         return None
     if kind == "sigma" and (a < 0 or b < 0):
