@@ -13,7 +13,10 @@ Grammar (EBNF; blanks and tabs may separate any two tokens)::
     factor     = { "+" | "-" } , atom , [ "^" , factor ] ;
     atom       = number
                | identifier , [ "(" , [ arguments ] , ")" ]
+               | reference
                | "(" , sum , ")" ;
+    reference  = identifier , "[" , index , { "," , index } , "]" ;   (* only with coefficients= *)
+    index      = [ "+" | "-" ] , digit , { digit } ;
     arguments  = list , [ ";" , list ]
                | ";" , list ;
     list       = sum , { "," , sum } ;
@@ -25,6 +28,12 @@ Grammar (EBNF; blanks and tabs may separate any two tokens)::
 Consequences and decisions:
 
 * ``+`` ``-`` and ``*`` ``/`` are left-associative: ``a-b-c = (a-b)-c``.
+  A run of them is one n-ary node: ``a - b + c`` is a :class:`Sum` of three
+  terms with ``ops == "-+"`` and ``2*x/3`` a :class:`Product` with
+  ``ops == "*/"``; a parenthesized sum (product) at the start of a sum
+  (product) is merged into it, since ``(a+b)+c`` means ``a+b+c``.
+  :func:`Add`, :func:`Sub`, :func:`Mul` and :func:`Div` build these nodes
+  from two operands.
 * ``^`` is right-associative (``a^b^c = a^(b^c)``) and binds tighter than a
   sign: ``-x^2 = -(x^2)``.  Its exponent may carry a sign, ``x^-2``.
 * A sign binds tighter than ``*`` and ``/``: ``-a*b`` is ``(-a)*b`` (the
@@ -42,6 +51,11 @@ Consequences and decisions:
   word) but at least one argument must follow ``;``: ``G(0,1;)`` and
   ``f(;)`` are errors.  ``f()`` is a call without arguments.  Only one
   ``;`` per call; no trailing commas.
+* Coefficient references such as ``c[2,-1]`` (blanks allowed inside the
+  brackets) are parsed only when the caller passes ``coefficients=``, a
+  check of the family and indices (constraint relations); elsewhere ``[``
+  is an unknown character.  A reference is one token and one :class:`Coef`
+  node, so messages and columns refer to the text as written.
 * Columns are 1-based character offsets into the text (a tab counts as
   one column).  An expression lives on a single line: line breaks are
   only tolerated at the very end of the text.
@@ -50,33 +64,34 @@ Consequences and decisions:
   characters, numbers with more than :data:`MAX_DIGITS` digits, and more
   than :data:`MAX_DEPTH` nested parentheses, calls, signs and powers
   together ("expression nested too deeply").  Long flat sums and products
-  such as ``1+1+...+1`` are not nesting and are only bounded by the length;
-  all functions of this module handle the resulting deep left-leaning trees
-  without recursion.
+  such as ``1+1+...+1`` are not nesting and are only bounded by the length:
+  they are single n-ary nodes.  All functions of this module walk trees
+  without recursion, including the one evaluator :func:`evaluate`, which
+  every front end drives with its own :class:`Rules`.
 
 Every node is a frozen dataclass with a keyword-only ``col`` (the 1-based
 column where its text starts, ``None`` for nodes built by hand).  ``col``
 takes no part in ``==`` and ``hash``, so trees compare by structure only.
-Parentheses are not nodes: ``(a+b)`` gives the ``Add`` at column 2, while
-an enclosing node such as the ``Mul`` of ``(a+b)*c`` starts at the ``(``.
+Parentheses are not nodes: ``(a+b)`` gives the ``Sum`` at column 2, while
+an enclosing node such as the ``Product`` of ``(a+b)*c`` starts at the ``(``.
 
 Examples
 --------
 >>> parse_expression("-zeta(3)^2/3")
-Div(Neg(Pow(Call('zeta', (Num(3),)), Num(2))), Num(3))
+Product((Neg(Pow(Call('zeta', (Num(3),)), Num(2))), Num(3)), '/')
 >>> tree = parse_expression("G(0,1,1; x)*s^2")
->>> tree.left.letters, tree.left.args
+>>> tree.items[0].letters, tree.items[0].args
 ((Num(0), Num(1), Num(1)), (Sym('x'),))
 >>> to_text(tree)
 'G(0, 1, 1; x)*s^2'
->>> parse_expression("0.25*s").left.value
+>>> parse_expression("0.25*s").items[0].value
 Fraction(1, 4)
 >>> to_text(parse_expression("(1-x)^(-t-1)"))
 '(1 - x)^(-t - 1)'
 >>> parse_expression("1 - x") == parse_expression("1-x")   # columns ignored
 True
 >>> [type(n).__name__ for n in walk(parse_expression("2*pi^2"))]
-['Mul', 'Num', 'Pow', 'Sym', 'Num']
+['Product', 'Num', 'Pow', 'Sym', 'Num']
 >>> parse_expression("2x")
 Traceback (most recent call last):
     ...
@@ -89,12 +104,13 @@ lowenergy.errors.ParseError: input.txt, line 4, column 7: unbalanced parenthesis
 
 from __future__ import annotations
 
+import re
 import unicodedata
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Callable, Dict, Iterator, List, Optional, Tuple, TypeVar
+from typing import Callable, Generic, Iterator, List, Optional, Tuple, TypeVar
 
-from .errors import LowEnergyError, ParseError
+from .errors import InputError, LowEnergyError, ParseError
 from .limits import MAX_DEPTH, MAX_DIGITS, MAX_TEXT_LENGTH
 
 T = TypeVar("T")
@@ -105,15 +121,23 @@ __all__ = [
     "Sym",
     "Call",
     "Neg",
+    "Sum",
+    "Product",
     "Add",
     "Sub",
     "Mul",
     "Div",
     "Pow",
+    "Coef",
+    "LEAVES",
+    "Token",
+    "tokenize",
+    "coefficient_reference",
     "parse_expression",
     "walk",
     "children",
-    "fold",
+    "Rules",
+    "evaluate",
     "to_text",
     "equal_ignoring_columns",
     "MAX_INPUT_LENGTH",
@@ -253,36 +277,129 @@ class Neg(Node):
         _check_node("Neg", "operand", self.operand)
 
 
+class _Chain(Node):
+    """An n-ary chain ``items[0] op[0] items[1] op[1] ... items[-1]``.
+
+    ``ops`` is a string with one operator character between each two items.
+    A first item of the same kind is flattened into the chain (``(a+b)+c`` is
+    the same sum as ``a+b+c``), so a chain built by hand and one parsed from
+    its text are equal.  Later items are never flattened: ``a-(b-c)`` keeps
+    its inner sum.
+    """
+
+    __slots__ = ()
+    _OPS = ""
+
+    def _setup(self, items, ops) -> None:
+        name = type(self).__name__
+        items = tuple(items)
+        if not isinstance(ops, str):
+            raise TypeError(f"{name}.ops must be a str of operator characters")
+        if len(items) < 2 or len(ops) != len(items) - 1:
+            raise ValueError(f"{name} needs at least two items and one operator between each two")
+        for item in items:
+            _check_node(name, "items", item)
+        if any(op not in self._OPS for op in ops):
+            raise ValueError(f"{name}.ops may only contain {' '.join(self._OPS)}")
+        first = items[0]
+        if type(first) is type(self):
+            items = first.items + items[1:]  # type: ignore[attr-defined]
+            ops = first.ops + ops  # type: ignore[attr-defined]
+        object.__setattr__(self, "items", items)
+        object.__setattr__(self, "ops", ops)
+
+    def prefix(self, k: int) -> Node:
+        """The chain of ``items[0..k]``: the left operand of the k-th operator plus its right one.
+
+        ``prefix(len(items) - 1)`` is the node itself and ``prefix(0)`` its
+        first item.  Messages use it to show the part of a long sum or
+        product that an operation had reached.
+
+        >>> to_text(parse_expression("a + b - c + d").prefix(2))
+        'a + b - c'
+        """
+        items = self.items  # type: ignore[attr-defined]
+        if not 0 <= k < len(items):
+            raise IndexError(f"prefix index {k} out of range")
+        if k == len(items) - 1:
+            return self
+        if k == 0:
+            return items[0]
+        return type(self)(items[: k + 1], self.ops[:k], col=self.col)  # type: ignore[attr-defined,call-arg]
+
+    @property
+    def left(self) -> Node:
+        """Everything but the last item (the left operand of the last operator)."""
+        return self.prefix(len(self.items) - 2)  # type: ignore[attr-defined]
+
+    @property
+    def right(self) -> Node:
+        """The last item (the right operand of the last operator)."""
+        return self.items[-1]  # type: ignore[attr-defined]
+
+
 @dataclass(frozen=True, eq=False, repr=False)
-class _Binary(Node):
-    left: Node
-    right: Node
+class Sum(_Chain):
+    """``items[0] ± items[1] ± ...``; ``ops`` holds the ``+``/``-`` between them.
+
+    >>> parse_expression("a - b + 2").ops
+    '-+'
+    """
+
+    items: Tuple[Node, ...]
+    ops: str
     col: Optional[int] = _col_field()
+    _OPS = "+-"
 
     def __post_init__(self) -> None:
-        name = type(self).__name__
-        _check_node(name, "left", self.left)
-        _check_node(name, "right", self.right)
+        self._setup(self.items, self.ops)
+
+    @property
+    def terms(self) -> Tuple[Node, ...]:
+        """The summands, without their signs."""
+        return self.items
 
 
 @dataclass(frozen=True, eq=False, repr=False)
-class Add(_Binary):
-    """``left + right``."""
+class Product(_Chain):
+    """``items[0] */ items[1] */ ...``; ``ops`` holds the ``*``/``/`` between them.
+
+    >>> parse_expression("1/2*s*t").ops
+    '/**'
+    """
+
+    items: Tuple[Node, ...]
+    ops: str
+    col: Optional[int] = _col_field()
+    _OPS = "*/"
+
+    def __post_init__(self) -> None:
+        self._setup(self.items, self.ops)
+
+    @property
+    def factors(self) -> Tuple[Node, ...]:
+        """The factors (a divisor is the factor after a ``/``)."""
+        return self.items
 
 
-@dataclass(frozen=True, eq=False, repr=False)
-class Sub(_Binary):
-    """``left - right``."""
+def Add(left: Node, right: Node, *, col: Optional[int] = None) -> Sum:
+    """``left + right`` as a :class:`Sum` (a sum on the left is extended)."""
+    return Sum((left, right), "+", col=col)
 
 
-@dataclass(frozen=True, eq=False, repr=False)
-class Mul(_Binary):
-    """``left * right``."""
+def Sub(left: Node, right: Node, *, col: Optional[int] = None) -> Sum:
+    """``left - right`` as a :class:`Sum` (a sum on the left is extended)."""
+    return Sum((left, right), "-", col=col)
 
 
-@dataclass(frozen=True, eq=False, repr=False)
-class Div(_Binary):
-    """``left / right``."""
+def Mul(left: Node, right: Node, *, col: Optional[int] = None) -> Product:
+    """``left * right`` as a :class:`Product` (a product on the left is extended)."""
+    return Product((left, right), "*", col=col)
+
+
+def Div(left: Node, right: Node, *, col: Optional[int] = None) -> Product:
+    """``left / right`` as a :class:`Product` (a product on the left is extended)."""
+    return Product((left, right), "/", col=col)
 
 
 @dataclass(frozen=True, eq=False, repr=False)
@@ -298,14 +415,46 @@ class Pow(Node):
         _check_node("Pow", "exponent", self.exponent)
 
 
+@dataclass(frozen=True, eq=False, repr=False)
+class Coef(Node):
+    """A coefficient reference ``family[i, j, ...]`` such as ``c[2,-1]``.
+
+    Only parsed when :func:`parse_expression` is given ``coefficients=``
+    (constraint relations); elsewhere ``[`` is not part of the grammar.
+    """
+
+    family: str
+    indices: Tuple[int, ...]
+    col: Optional[int] = _col_field()
+
+    def __post_init__(self) -> None:
+        if not _is_identifier(self.family):
+            raise ValueError(f"Coef.family must be an identifier, not {self.family!r}")
+        indices = tuple(self.indices)
+        if not indices or any(isinstance(i, bool) or not isinstance(i, int) for i in indices):
+            raise TypeError("Coef.indices must be a non-empty tuple of ints")
+        object.__setattr__(self, "indices", indices)
+
+    @property
+    def name(self) -> str:
+        """The canonical spelling, ``c[2,-1]``."""
+        return f"{self.family}[{','.join(str(i) for i in self.indices)}]"
+
+
+#: The leaves of a tree: evaluated as a whole (a call's arguments included).
+LEAVES = (Num, Sym, Call, Coef)
+
+
 def children(node: Node) -> Tuple[Node, ...]:
     """The direct sub-nodes, left to right (a call's letters before its arguments).
 
     >>> children(parse_expression("a - b^2"))
     (Sym('a'), Pow(Sym('b'), Num(2)))
+    >>> len(children(parse_expression("1+2+3+4")))   # sums are n-ary
+    4
     """
-    if isinstance(node, _Binary):
-        return (node.left, node.right)
+    if isinstance(node, _Chain):
+        return node.items  # type: ignore[attr-defined]
     if isinstance(node, Pow):
         return (node.base, node.exponent)
     if isinstance(node, Neg):
@@ -313,36 +462,6 @@ def children(node: Node) -> Tuple[Node, ...]:
     if isinstance(node, Call):
         return node.args if node.letters is None else node.letters + node.args
     return ()
-
-
-def fold(tree: Node, leaf: Callable[[Node], T], inner: Callable[[Node, List[T]], T]) -> T:
-    """Evaluate a tree bottom-up without recursion.
-
-    ``leaf(node)`` gives the value of a ``Num``, ``Sym`` or ``Call`` (a call's
-    arguments are left to ``leaf``); ``inner(node, values)`` combines the
-    values of an operator's children, in the order of :func:`children`.
-    Long sums are deep left-leaning trees, hence the explicit stack; siblings
-    are evaluated right to left, so the right-most error is raised first.
-
-    >>> fold(parse_expression("1 + 2*3"), lambda n: n.value,
-    ...      lambda n, v: v[0] + v[1] if isinstance(n, Add) else v[0] * v[1])
-    Fraction(7, 1)
-    """
-    values: Dict[int, List[T]] = {}
-    stack: List[Tuple[Node, bool]] = [(tree, False)]
-    while stack:
-        node, ready = stack.pop()
-        if isinstance(node, (Num, Sym, Call)):
-            result = leaf(node)
-        else:
-            kids = children(node)
-            if not ready:
-                stack.append((node, True))
-                stack.extend((kid, False) for kid in kids)
-                continue
-            result = inner(node, [values[id(kid)].pop() for kid in kids])
-        values.setdefault(id(node), []).append(result)
-    return values[id(tree)].pop()
 
 
 def walk(node: Node) -> Iterator[Node]:
@@ -360,6 +479,127 @@ def walk(node: Node) -> Iterator[Node]:
         stack.extend(reversed(children(current)))
 
 
+# --------------------------------------------------------------------------
+# the evaluator
+# --------------------------------------------------------------------------
+
+
+class Rules(Generic[T]):
+    """What :func:`evaluate` does at each node; a front end overrides what it needs.
+
+    ``leaf(node)`` is asked first for every node, parents before their
+    operands: a value means "this node is evaluated as a whole", ``None``
+    means "evaluate the operands and combine them".  :data:`LEAVES` (numbers,
+    names, calls with their arguments, coefficient references) must get a
+    value.  The operations then combine values left to right:
+
+    * ``neg(value, node)`` for ``-operand``;
+    * ``add``/``sub``/``mul``/``div(left, right, node, k)`` for the k-th
+      operator of a :class:`Sum` or :class:`Product` ``node`` (``right`` is
+      the value of ``node.items[k]``, ``left`` that of ``node.prefix(k - 1)``;
+      messages about the whole operation use ``node.prefix(k)``);
+    * ``power(base, exponent, node)`` for ``base ^ exponent``.
+
+    ``head(node)`` may take the first items of a chain as one value.
+
+    The defaults refuse the operation with a ``TypeError`` (a front end that
+    forgot a case is a bug, not a user error).
+    """
+
+    def leaf(self, node: Node) -> Optional[T]:
+        raise NotImplementedError(f"{type(self).__name__}.leaf")
+
+    def head(self, node: Node) -> Optional[Tuple[int, T]]:
+        """For a :class:`Sum` or :class:`Product` whose ``leaf`` was None:
+        ``(k, value)`` when the front end evaluates ``node.prefix(k)`` as a
+        whole (``1 - x + ...`` in integrands), else None (the default)."""
+        return None
+
+    def _unsupported(self, what: str) -> TypeError:
+        return TypeError(f"{type(self).__name__} does not support {what}")
+
+    def neg(self, value: T, node: Neg) -> T:
+        raise self._unsupported("negation")
+
+    def add(self, left: T, right: T, node: Sum, k: int) -> T:
+        raise self._unsupported("'+'")
+
+    def sub(self, left: T, right: T, node: Sum, k: int) -> T:
+        raise self._unsupported("'-'")
+
+    def mul(self, left: T, right: T, node: Product, k: int) -> T:
+        raise self._unsupported("'*'")
+
+    def div(self, left: T, right: T, node: Product, k: int) -> T:
+        raise self._unsupported("'/'")
+
+    def power(self, base: T, exponent: T, node: Pow) -> T:
+        raise self._unsupported("'^'")
+
+
+def evaluate(tree: Node, rules: Rules[T]) -> T:
+    """Evaluate ``tree`` bottom-up with ``rules``: the one tree evaluator.
+
+    Operands are evaluated left to right, so the left-most error is raised
+    first (as the parser does), and a sum or product is accumulated term by
+    term as its terms are evaluated.  No recursion: the nesting depth of a
+    tree only costs list entries, and a sum of 100,000 terms is one node.
+
+    >>> class Numbers(Rules):
+    ...     def leaf(self, node):
+    ...         return node.value if isinstance(node, Num) else None
+    ...     def add(self, a, b, node, k): return a + b
+    ...     def sub(self, a, b, node, k): return a - b
+    ...     def mul(self, a, b, node, k): return a * b
+    ...     def div(self, a, b, node, k): return a / b
+    ...     def neg(self, a, node): return -a
+    ...     def power(self, a, b, node): return a ** int(b)
+    >>> evaluate(parse_expression("1 + 2*3 - 2^-1/(4 - 5)"), Numbers())
+    Fraction(15, 2)
+    """
+    # frames: [node, its operands, index of the operand being evaluated, value so far]
+    stack: List[list] = []
+    node = tree
+    while True:
+        value = rules.leaf(node)
+        if value is None:
+            if isinstance(node, LEAVES):
+                raise TypeError(f"{type(rules).__name__}.leaf gave no value for {type(node).__name__}")
+            kids = children(node)
+            first = rules.head(node) if isinstance(node, _Chain) else None
+            if first is None:
+                stack.append([node, kids, 0, None])
+                node = kids[0]
+                continue
+            k, value = first
+            if k + 1 < len(kids):
+                stack.append([node, kids, k + 1, value])
+                node = kids[k + 1]
+                continue
+        while stack:
+            frame = stack[-1]
+            parent, kids, k, acc = frame
+            if k == 0 and not isinstance(parent, Neg):
+                acc = value
+            elif isinstance(parent, Sum):
+                acc = (rules.add if parent.ops[k - 1] == "+" else rules.sub)(acc, value, parent, k)
+            elif isinstance(parent, Product):
+                acc = (rules.mul if parent.ops[k - 1] == "*" else rules.div)(acc, value, parent, k)
+            elif isinstance(parent, Pow):
+                acc = rules.power(acc, value, parent)
+            else:
+                acc = rules.neg(value, parent)  # type: ignore[arg-type]
+            k += 1
+            if k < len(kids):
+                frame[2], frame[3] = k, acc
+                node = kids[k]
+                break
+            stack.pop()
+            value = acc
+        else:
+            return value
+
+
 def _equal(a: Node, b: Node) -> bool:
     stack = [(a, b)]
     while stack:
@@ -373,6 +613,12 @@ def _equal(a: Node, b: Node) -> bool:
                 return False
         elif isinstance(x, Sym):
             if x.name != y.name:
+                return False
+        elif isinstance(x, _Chain):
+            if x.ops != y.ops:  # type: ignore[attr-defined]
+                return False
+        elif isinstance(x, Coef):
+            if x.family != y.family or x.indices != y.indices:
                 return False
         elif isinstance(x, Call):
             if x.name != y.name or len(x.args) != len(y.args):
@@ -401,6 +647,10 @@ def _own_key(node: Node) -> object:
         return node.name
     if isinstance(node, Call):
         return (node.name, None if node.letters is None else len(node.letters))
+    if isinstance(node, _Chain):
+        return node.ops  # type: ignore[attr-defined]
+    if isinstance(node, Coef):
+        return (node.family, node.indices)
     return None
 
 
@@ -430,9 +680,9 @@ _ATOM, _POWER, _SIGN, _PRODUCT, _SUM = 5, 4, 3, 2, 1
 
 
 def _precedence(node: Node) -> int:
-    if isinstance(node, (Add, Sub)):
+    if isinstance(node, Sum):
         return _SUM
-    if isinstance(node, (Mul, Div)):
+    if isinstance(node, Product):
         return _PRODUCT
     if isinstance(node, Neg):
         return _SIGN
@@ -442,8 +692,8 @@ def _precedence(node: Node) -> int:
 
 
 def _starts_with_sign(node: Node) -> bool:
-    while isinstance(node, _Binary):
-        node = node.left
+    while isinstance(node, _Chain):
+        node = node.items[0]  # type: ignore[attr-defined]
     return isinstance(node, Neg)
 
 
@@ -464,6 +714,9 @@ def _number_text(value: Fraction) -> str:
     places = max(twos, fives)
     digits = str(num * 10**places // den).rjust(places + 1, "0")
     return f"{digits[:-places]}.{digits[-places:]}"
+
+
+_SYMBOLS = {"+": " + ", "-": " - ", "*": "*", "/": "/"}
 
 
 def _wrap(node: Node, needed: bool) -> list:
@@ -493,15 +746,16 @@ def _text_parts(node: Node) -> list:
             + ["^"]
             + _wrap(node.exponent, _precedence(node.exponent) < _ATOM)
         )
-    if isinstance(node, _Binary):
+    if isinstance(node, Coef):
+        return [node.name]
+    if isinstance(node, _Chain):
         own = _precedence(node)
-        symbol = {Add: " + ", Sub: " - ", Mul: "*", Div: "/"}[type(node)]
-        right_needs = _precedence(node.right) <= own or _starts_with_sign(node.right)
-        return (
-            _wrap(node.left, _precedence(node.left) < own)
-            + [symbol]
-            + _wrap(node.right, right_needs)
-        )
+        items = node.items  # type: ignore[attr-defined]
+        parts = _wrap(items[0], _precedence(items[0]) < own)
+        for op, item in zip(node.ops, items[1:]):  # type: ignore[attr-defined]
+            needs = _precedence(item) <= own or _starts_with_sign(item)
+            parts += [_SYMBOLS[op]] + _wrap(item, needs)
+        return parts
     raise TypeError(f"not a Node: {type(node).__name__}")
 
 
@@ -529,6 +783,13 @@ def _repr_parts(node: Node) -> list:
             parts += as_tuple(node.letters)
         parts.append(")")
         return parts
+    if isinstance(node, Coef):
+        return [f"Coef({node.family!r}, {node.indices!r})"]
+    if isinstance(node, _Chain):
+        parts = [f"{name}(("]
+        for i, item in enumerate(node.items):  # type: ignore[attr-defined]
+            parts += [", ", item] if i else [item]
+        return parts + [f"), {node.ops!r})"]  # type: ignore[attr-defined]
     return [f"{name}("] + [
         piece for i, kid in enumerate(children(node)) for piece in ([", ", kid] if i else [kid])
     ] + [")"]
@@ -572,12 +833,25 @@ def to_text(node: Node) -> str:
 
 
 @dataclass(frozen=True)
-class _Token:
-    kind: str  # "num", "name", "op", "end" or "error"
+class Token:
+    """One token of the grammar: ``text`` as written, starting at 1-based column ``col``.
+
+    ``kind`` is ``"num"`` (``value`` the exact Fraction), ``"name"``, ``"op"``
+    (one of ``+ - * / ^ ( ) , ;``), ``"coef"`` (``value`` is ``(family,
+    indices)``), ``"end"`` or ``"error"`` (``error`` the ParseError).
+    """
+
+    kind: str
     text: str
     col: int
-    value: Optional[Fraction] = None
-    error: Optional[ParseError] = None
+    value: object = None
+    error: Optional[LowEnergyError] = None
+
+
+#: ``family(indices)`` -> None, or raise: the caller's check of a coefficient reference.
+CoefficientCheck = Callable[[str, Optional[Tuple[int, ...]], str, int], None]
+
+_INDEX = re.compile(r"[ \t]*([+-]?)[ \t]*(\d+)[ \t]*")
 
 
 _ALLOWED = "letters, digits, '_', '.', '+', '-', '*', '/', '^', '(', ')', ',', ';' and blanks"
@@ -628,19 +902,101 @@ def _character_hint(ch: str) -> str:
     return f"allowed are {_ALLOWED}"
 
 
-def _tokenize(text: str) -> List[_Token]:
+def _indices(inner: str) -> Optional[Tuple[int, ...]]:
+    """``" 2, -1"`` -> ``(2, -1)``; None unless a list of signed integers (at most MAX_DIGITS digits each)."""
+    out = []
+    for part in inner.split(","):
+        m = _INDEX.fullmatch(part)
+        if not m or len(m.group(2)) > MAX_DIGITS:
+            return None
+        out.append(int(m.group(2)) * (-1 if m.group(1) == "-" else 1))
+    return tuple(out)
+
+
+def _reference(text: str, start: int, name_end: int, bracket: int,
+               check: CoefficientCheck) -> Tuple[Token, int]:
+    """The token of the reference ``name[...]`` at ``start`` and the index after it."""
+    n = len(text)
+    close = text.find("]", bracket)
+    stop = text.find("[", bracket + 1)
+    if close < 0 or (0 <= stop < close):
+        term = _short(text[start : (stop if stop >= 0 else n)].rstrip())
+        raise ParseError(
+            "unclosed '[' in a coefficient reference",
+            column=bracket + 1,
+            term=term,
+            hint="write c[i,j] with two integers, e.g. c[2,0]",
+        )
+    family, term = text[start:name_end], text[start : close + 1]
+    indices = _indices(text[bracket + 1 : close])
+    check(family, indices, term, start + 1)
+    if indices is None:
+        raise ParseError(
+            f"malformed coefficient reference '{_short(term)}'",
+            column=start + 1,
+            term=_short(term),
+            hint=f"write {family}[i,j] with integers, e.g. {family}[2,0]",
+        )
+    return Token("coef", term, start + 1, value=(family, indices)), close + 1
+
+
+def tokenize(text: str, *, coefficients: Optional[CoefficientCheck] = None) -> List[Token]:
+    """The tokens of ``text`` (without the end marker); raise the first lexical error.
+
+    The same tokenizer as :func:`parse_expression`: columns are 1-based, so
+    ``text[t.col - 1 : t.col - 1 + len(t.text)] == t.text`` and the text
+    between two tokens is blanks only.
+
+    >>> [(t.kind, t.text, t.col) for t in tokenize("2*a1 - c")]
+    [('num', '2', 1), ('op', '*', 2), ('name', 'a1', 3), ('op', '-', 6), ('name', 'c', 8)]
+    """
+    tokens = _tokenize(text, coefficients)
+    if tokens[-1].kind == "error":
+        assert tokens[-1].error is not None
+        raise tokens[-1].error
+    return tokens[:-1]
+
+
+def coefficient_reference(text: str) -> Optional[Coef]:
+    """The :class:`Coef` when ``text`` is one coefficient reference (blanks around it allowed), else None.
+
+    Table headers and CSV rows name coefficients in the same syntax as
+    constraint relations; which families and indices are meaningful is the
+    caller's business.
+
+    >>> coefficient_reference(" sym[3, 1] ")
+    Coef('sym', (3, 1))
+    >>> coefficient_reference("c[1,0] + 1") is None, coefficient_reference("c[1,x]") is None
+    (True, True)
+    """
+    if not isinstance(text, str) or len(text) > MAX_INPUT_LENGTH:
+        return None
+    try:
+        tokens = tokenize(text.strip(), coefficients=lambda *reference: None)
+    except LowEnergyError:
+        return None
+    if len(tokens) != 1 or tokens[0].kind != "coef":
+        return None
+    family, indices = tokens[0].value  # type: ignore[misc]
+    return Coef(family, indices)
+
+
+def _tokenize(text: str, coefficients: Optional[CoefficientCheck] = None) -> List[Token]:
     """Split ``text`` into tokens.
 
     A lexical error does not raise here: it becomes an ``error`` token, so
     that the parser reports whichever problem comes first from the left.
+    With ``coefficients``, ``name[i, j, ...]`` is one ``coef`` token, checked
+    by ``coefficients(name, indices or None, text, column)``, which raises to
+    refuse it.
     """
-    tokens: List[_Token] = []
+    tokens: List[Token] = []
     n = len(text)
     i = 0
 
-    def fail(message: str, col: int, term: str, hint: str) -> List[_Token]:
+    def fail(message: str, col: int, term: str, hint: str) -> List[Token]:
         error = ParseError(message, column=col, term=_short(term), hint=hint)
-        tokens.append(_Token("error", term, col, error=error))
+        tokens.append(Token("error", term, col, error=error))
         return tokens
 
     while i < n:
@@ -729,13 +1085,30 @@ def _tokenize(text: str) -> List[_Token]:
                 value = int(whole) + Fraction(int(frac), 10**frac_digits)
             else:
                 value = Fraction(int(literal))
-            tokens.append(_Token("num", literal, start + 1, value=value))
+            tokens.append(Token("num", literal, start + 1, value=value))
             continue
         if ch in _FIRST:
             while i < n and text[i] in _REST:
                 i += 1
-            tokens.append(_Token("name", text[start:i], start + 1))
+            if coefficients is not None:
+                k = i
+                while k < n and text[k] in _BLANKS:
+                    k += 1
+                if k < n and text[k] == "[":
+                    try:
+                        token, i = _reference(text, start, i, k, coefficients)
+                    except LowEnergyError as error:
+                        tokens.append(Token("error", error.term or "", error.column or start + 1, error=error))
+                        return tokens
+                    tokens.append(token)
+                    continue
+            tokens.append(Token("name", text[start:i], start + 1))
             continue
+        if coefficients is not None and ch in "[]":
+            if ch == "[":
+                return fail("unexpected '['", start + 1, "[",
+                            "'[' only follows a coefficient name, as in c[2,0]; group terms with ( )")
+            return fail("unexpected ']'", start + 1, "]", "this ']' has no matching '['")
         if ch == "*" and i + 1 < n and text[i + 1] == "*":
             return fail(
                 "'**' is not an operator",
@@ -744,7 +1117,7 @@ def _tokenize(text: str) -> List[_Token]:
                 "use ^ for powers, as in x^2",
             )
         if ch in _OPERATORS:
-            tokens.append(_Token("op", ch, start + 1))
+            tokens.append(Token("op", ch, start + 1))
             i += 1
             continue
         if ch == ".":
@@ -772,7 +1145,7 @@ def _tokenize(text: str) -> List[_Token]:
             _character_hint(ch),
         )
     end_col = len(text.rstrip(" \t\r\n")) + 1
-    tokens.append(_Token("end", "", end_col))
+    tokens.append(Token("end", "", end_col))
     return tokens
 
 
@@ -783,14 +1156,18 @@ def _tokenize(text: str) -> List[_Token]:
 _BINARY = {"+": Add, "-": Sub, "*": Mul, "/": Div}
 
 
-def _juxtaposed(token: _Token) -> bool:
-    return token.kind in ("num", "name") or (token.kind == "op" and token.text == "(")
+def _juxtaposed(token: Token) -> bool:
+    return token.kind in ("num", "name", "coef") or (token.kind == "op" and token.text == "(")
+
+
+def _chain(kind, items: List[Node], ops: List[str], col: int) -> Node:
+    return items[0] if len(items) == 1 else kind(tuple(items), "".join(ops), col=col)
 
 
 class _Parser:
     """Recursive descent over the token list (``sum``, ``factor``, ``call``)."""
 
-    def __init__(self, text: str, tokens: List[_Token]) -> None:
+    def __init__(self, text: str, tokens: List[Token]) -> None:
         self.text = text
         self.tokens = tokens
         self.pos = 0
@@ -798,14 +1175,14 @@ class _Parser:
 
     # -- token access ------------------------------------------------------
 
-    def peek(self) -> _Token:
+    def peek(self) -> Token:
         token = self.tokens[min(self.pos, len(self.tokens) - 1)]
         if token.kind == "error":
             assert token.error is not None
             raise token.error
         return token
 
-    def advance(self) -> _Token:
+    def advance(self) -> Token:
         token = self.peek()
         self.pos += 1
         return token
@@ -814,7 +1191,7 @@ class _Parser:
         token = self.peek()
         return token.kind == "op" and token.text == op
 
-    def enter(self, token: _Token) -> None:
+    def enter(self, token: Token) -> None:
         self.depth += 1
         if self.depth > MAX_DEPTH:
             raise ParseError(
@@ -827,7 +1204,7 @@ class _Parser:
 
     # -- error helpers -----------------------------------------------------
 
-    def expected(self, after: Optional[_Token], found: _Token) -> ParseError:
+    def expected(self, after: Optional[Token], found: Token) -> ParseError:
         if after is None and found.kind == "op" and found.text in "),;":
             return self.unexpected(found)  # at the very start of the text
         found_text = "end of input" if found.kind == "end" else f"'{_short(found.text)}'"
@@ -859,7 +1236,7 @@ class _Parser:
         term = found.text if found.kind != "end" else (after.text if after else None)
         return ParseError(message, column=found.col, term=term, hint=hint)
 
-    def unexpected(self, token: _Token) -> ParseError:
+    def unexpected(self, token: Token) -> ParseError:
         hints = {
             ")": "this ')' has no matching '('",
             ",": "',' only separates the arguments of a call, as in f(a, b)",
@@ -872,7 +1249,7 @@ class _Parser:
             hint=hints.get(token.text, "remove it"),
         )
 
-    def unclosed(self, opening: _Token, found: _Token) -> ParseError:
+    def unclosed(self, opening: Token, found: Token) -> ParseError:
         if found.kind == "end":
             return ParseError(
                 f"unbalanced parenthesis: '(' at column {opening.col} is never closed",
@@ -889,9 +1266,9 @@ class _Parser:
             )
         return self.unexpected(found)  # pragma: no cover - not reachable
 
-    def juxtaposition(self, before: _Token, after: _Token) -> ParseError:
-        def show(token: _Token, following: Optional[_Token]) -> str:
-            if token.kind in ("num", "name"):
+    def juxtaposition(self, before: Token, after: Token) -> ParseError:
+        def show(token: Token, following: Optional[Token]) -> str:
+            if token.kind in ("num", "name", "coef"):
                 text = _short(token.text, 20)
                 if following is not None and following.kind == "op" and following.text == "(":
                     text += "(...)"
@@ -926,40 +1303,37 @@ class _Parser:
             raise self.unexpected(token)
         return node
 
-    def sum(self, after: Optional[_Token]) -> Tuple[Node, int]:
-        """The rules ``sum`` and ``product`` in one loop.
+    def sum(self, after: Optional[Token]) -> Tuple[Node, int]:
+        """The rules ``sum`` and ``product`` in one loop, building n-ary nodes.
 
         Keeping both precedence levels in one frame halves the Python stack
-        used per level of parentheses.
+        used per level of parentheses; a flat sum of any length is one
+        :class:`Sum` of :class:`Product` terms.
         """
-        total: Optional[Node] = None
-        total_op: Optional[_Token] = None
-        term, start = self.factor(after)
-        term_start = start
+        terms: List[Node] = []
+        signs: List[str] = []
+        factor, start = self.factor(after)
+        factors, ops, term_start = [factor], [], start
         while True:
             token = self.peek()
-            if token.kind != "op":
+            if token.kind != "op" or token.text not in "*/+-":
                 break
+            self.advance()
             if token.text in "*/":
-                self.advance()
                 right, _ = self.factor(token)
-                term = _BINARY[token.text](term, right, col=term_start)
-            elif token.text in "+-":
-                self.advance()
-                total = term if total is None else _BINARY[total_op.text](  # type: ignore[union-attr]
-                    total, term, col=start
-                )
-                total_op = token
-                term, term_start = self.factor(token)
+                factors.append(right)
+                ops.append(token.text)
             else:
-                break
-        if total is None:
-            return term, start
-        return _BINARY[total_op.text](total, term, col=start), start  # type: ignore[union-attr]
+                terms.append(_chain(Product, factors, ops, term_start))
+                signs.append(token.text)
+                factor, term_start = self.factor(token)
+                factors, ops = [factor], []
+        terms.append(_chain(Product, factors, ops, term_start))
+        return _chain(Sum, terms, signs, start), start
 
-    def factor(self, after: Optional[_Token]) -> Tuple[Node, int]:
+    def factor(self, after: Optional[Token]) -> Tuple[Node, int]:
         """Signs, one atom, and an optional ``^ factor``."""
-        signs: List[_Token] = []
+        signs: List[Token] = []
         while True:
             token = self.peek()
             if token.kind == "op" and token.text in "+-":
@@ -974,6 +1348,17 @@ class _Parser:
         if token.kind == "num":
             self.advance()
             node: Node = Num(token.value, col=token.col)  # type: ignore[arg-type]
+        elif token.kind == "coef":
+            self.advance()
+            if self.at("("):
+                raise InputError(
+                    "a coefficient cannot be called like a function",
+                    column=token.col,
+                    term=token.text,
+                    hint=f"write {token.text}*(...) for a product",
+                )
+            family, indices = token.value  # type: ignore[misc]
+            node = Coef(family, indices, col=token.col)
         elif token.kind == "name":
             self.advance()
             if self.at("("):
@@ -1009,7 +1394,7 @@ class _Parser:
             start = signs[0].col
         return node, start
 
-    def call(self, name: _Token) -> Call:
+    def call(self, name: Token) -> Call:
         opening = self.advance()
         self.enter(opening)
         items: List[Node] = []
@@ -1059,18 +1444,25 @@ def parse_expression(
     *,
     source: Optional[str] = None,
     line: Optional[int] = None,
+    coefficients: Optional[CoefficientCheck] = None,
 ) -> Node:
     """Parse one expression; see the module docstring for the grammar.
 
     ``source`` and ``line`` are copied into any :class:`ParseError` so that
-    callers can report "file, line, column".  Only errors derived from
+    callers can report "file, line, column".  ``coefficients`` turns on
+    coefficient references ``name[i, j, ...]`` (:class:`Coef` nodes): it is
+    called as ``coefficients(name, indices, text, column)`` for each one, with
+    ``indices`` None when the brackets do not hold signed integers, and
+    raises to refuse it (see :mod:`lowenergy.constraints.model`).  Only errors derived from
     :class:`~lowenergy.errors.LowEnergyError` leave this function for any
     string; a non-string argument is a programming error (``TypeError``).
 
     >>> parse_expression("x^(-s-1+2)")
-    Pow(Sym('x'), Add(Sub(Neg(Sym('s')), Num(1)), Num(2)))
+    Pow(Sym('x'), Sum((Neg(Sym('s')), Num(1), Num(2)), '-+'))
     >>> parse_expression("G(; x)")
     Call('G', (Sym('x'),), letters=())
+    >>> parse_expression("2*c[1, -2]", coefficients=lambda *reference: None)
+    Product((Num(2), Coef('c', (1, -2))), '*')
     >>> parse_expression("1 +")
     Traceback (most recent call last):
         ...
@@ -1086,7 +1478,7 @@ def parse_expression(
                 term=None,
                 hint=f"expressions may have at most {MAX_INPUT_LENGTH} characters",
             )
-        return _Parser(text, _tokenize(text)).parse()
+        return _Parser(text, _tokenize(text, coefficients)).parse()
     except LowEnergyError as error:
         raise error.located(source=source, line=line)
     except RecursionError:

@@ -23,6 +23,7 @@ from lowenergy.parse import (
     Num,
     Pow,
     Sub,
+    Sum,
     Sym,
     equal_ignoring_columns,
     parse_expression,
@@ -379,16 +380,17 @@ def test_input_length_limit():
 
 
 def test_long_flat_sum_is_not_nesting_and_is_handled_without_recursion():
-    # 12_000 terms give a left-leaning tree 12_000 levels deep (to_text: 48_000 characters, within MAX_INPUT_LENGTH); all helpers
+    # 12_000 terms give one n-ary Sum of 12_000 terms (to_text: 48_000 characters, within MAX_INPUT_LENGTH); all helpers
     # (==, hash, repr, walk, to_text) must cope with it.
     count = 12_000
     text = "+".join(["x"] * count)
     tree = parse_expression(text)
-    assert sum(1 for _ in walk(tree)) == 2 * count - 1
+    assert sum(1 for _ in walk(tree)) == count + 1  # the Sum and its terms: no nesting
+    assert isinstance(tree, Sum) and len(tree.terms) == count and tree.ops == "+" * (count - 1)
     again = parse_expression(to_text(tree))
     assert again == tree and hash(again) == hash(tree)
     assert again != parse_expression(text + "+y")
-    assert repr(tree).startswith("Add(Add(")
+    assert repr(tree).startswith("Sum((Sym('x'), Sym('x'),")
     long_product = parse_expression("*".join(["2"] * count))
     assert to_text(long_product) == "*".join(["2"] * count)
 
@@ -528,3 +530,201 @@ def test_only_package_errors_are_raised_for_hostile_strings():
             parse_expression(text)
         except LowEnergyError:
             pass
+
+
+# --------------------------------------------------------------------------
+# n-ary sums and products, coefficient references, the one evaluator
+# --------------------------------------------------------------------------
+
+from lowenergy.errors import InputError  # noqa: E402
+from lowenergy.parse import (  # noqa: E402
+    LEAVES,
+    Coef,
+    Product,
+    Rules,
+    coefficient_reference,
+    evaluate,
+    tokenize,
+)
+
+
+def test_runs_of_operators_are_one_nary_node():
+    tree = parse_expression("a - b + 2*c/d*e")
+    assert isinstance(tree, Sum) and tree.ops == "-+" and len(tree.terms) == 3
+    product = tree.terms[2]
+    assert isinstance(product, Product) and product.ops == "*/*" and len(product.factors) == 4
+    assert (tree.col, product.col) == (1, 9)
+    # the binary builders give the same nodes: a sum (product) on the left is extended
+    assert tree == Add(Sub(S("a"), S("b")), Mul(Div(Mul(N(2), S("c")), S("d")), S("e")))
+    # a parenthesized sum at the start is the same sum; elsewhere it stays a node of its own
+    assert parse_expression("(a + b) + c") == parse_expression("a + b + c")
+    assert parse_expression("(a*b)*c") == parse_expression("a*b*c")
+    inner = parse_expression("a - (b - c)")
+    assert len(inner.terms) == 2 and isinstance(inner.terms[1], Sum)
+    assert to_text(inner) == "a - (b - c)"
+
+
+def test_prefix_is_the_left_operand_of_the_binary_reading():
+    tree = parse_expression("a + b - c + d")
+    assert [to_text(tree.prefix(k)) for k in range(4)] == ["a", "a + b", "a + b - c", "a + b - c + d"]
+    assert tree.prefix(3) is tree and tree.prefix(2).col == tree.col
+    assert tree.left == tree.prefix(2) and tree.right == S("d")
+    with pytest.raises(IndexError):
+        tree.prefix(4)
+
+
+def test_chain_constructors_validate():
+    with pytest.raises(ValueError):
+        Sum((x,), "")
+    with pytest.raises(ValueError):
+        Sum((x, y), "*")
+    with pytest.raises(ValueError):
+        Product((x, y, s), "*")
+    with pytest.raises(TypeError):
+        Sum((x, y), ["+"])
+    with pytest.raises(TypeError):
+        Coef("c", (1, "2"))
+
+
+_ACCEPT = lambda *reference: None  # noqa: E731 - accept every reference
+
+
+def test_coefficient_references_are_nodes_with_their_columns():
+    tree = parse_expression("3*c[ 2 , -1 ] + sym[1,1]^2", coefficients=_ACCEPT)
+    refs = [n for n in walk(tree) if isinstance(n, Coef)]
+    assert [(r.family, r.indices, r.col) for r in refs] == [("c", (2, -1), 3), ("sym", (1, 1), 17)]
+    assert to_text(tree) == "3*c[2,-1] + sym[1,1]^2"
+    assert parse_expression(to_text(tree), coefficients=_ACCEPT) == tree
+    assert parse_expression("c[1,0,-2]", coefficients=_ACCEPT) == Coef("c", (1, 0, -2))
+
+
+def test_brackets_are_not_grammar_without_coefficients():
+    with pytest.raises(ParseError, match=r"unknown character '\['") as info:
+        parse_expression("c[1,0]")
+    assert info.value.column == 2 and "round parentheses" in info.value.hint
+
+
+@pytest.mark.parametrize(
+    "text, message, column",
+    [
+        ("1 + c[1,0", "unclosed '['", 6),
+        ("1 + c[1,x]", "malformed coefficient reference 'c[1,x]'", 5),
+        ("2*[1,0]", "unexpected '['", 3),
+        ("c[1,0]]", "unexpected ']'", 7),
+        ("2c[1,0]", "missing operator between '2' and 'c[1,0]'", 2),
+    ],
+)
+def test_malformed_references_keep_columns(text, message, column):
+    with pytest.raises(ParseError) as info:
+        parse_expression(text, coefficients=_ACCEPT)
+    assert message in info.value.message and info.value.column == column
+
+
+def test_reference_check_errors_come_in_order_from_the_left():
+    def only_c(family, indices, term, column):
+        if family != "c":
+            raise ParseError(f"unknown family {family}", column=column, term=term)
+
+    with pytest.raises(ParseError, match="missing operator") as info:
+        parse_expression("2x + d[1,0]", coefficients=only_c)
+    with pytest.raises(ParseError, match="unknown family d") as info:
+        parse_expression("d[1,0] + 2x", coefficients=only_c)
+    assert info.value.column == 1
+    with pytest.raises(InputError, match="cannot be called"):
+        parse_expression("c[1,0](2)", coefficients=only_c)
+
+
+def test_coefficient_reference_of_a_name():
+    assert coefficient_reference(" c[2, -1] ") == Coef("c", (2, -1))
+    assert coefficient_reference("c[1,0]*2") is None
+    assert coefficient_reference("c(1,0)") is None
+    assert coefficient_reference("c[1,") is None
+    assert coefficient_reference(12) is None
+
+
+def test_tokens_cover_the_text_with_blanks_between():
+    text = "  G(0,1; x)*s^2 -\t0.25*c"
+    tokens = tokenize(text)
+    pieces = [text[t.col - 1 : t.col - 1 + len(t.text)] for t in tokens]
+    assert pieces == [t.text for t in tokens]
+    assert [t.kind for t in tokens][:4] == ["name", "op", "num", "op"]
+    gaps = [text[a.col - 1 + len(a.text) : b.col - 1] for a, b in zip(tokens, tokens[1:])]
+    assert all(gap.strip(" \t") == "" for gap in gaps)
+    with pytest.raises(ParseError, match="unknown character"):
+        tokenize("1 + $")
+
+
+class _Exact(Rules):
+    """Exact rational arithmetic, recording the order of the calls."""
+
+    def __init__(self):
+        self.calls = []
+
+    def leaf(self, node):
+        if isinstance(node, Num):
+            self.calls.append(to_text(node))
+            return node.value
+        if isinstance(node, LEAVES):
+            raise ParseError(f"not a number: {to_text(node)}", column=node.col)
+        return None
+
+    def neg(self, a, node):
+        return -a
+
+    def add(self, a, b, node, k):
+        self.calls.append(f"+{k}")
+        return a + b
+
+    def sub(self, a, b, node, k):
+        self.calls.append(f"-{k}")
+        return a - b
+
+    def mul(self, a, b, node, k):
+        return a * b
+
+    def div(self, a, b, node, k):
+        if not b:
+            raise ParseError("division by zero", column=node.items[k].col, term=to_text(node.prefix(k)))
+        return a / b
+
+    def power(self, a, b, node):
+        return a ** int(b)
+
+
+def test_evaluate_goes_left_to_right_and_accumulates():
+    rules = _Exact()
+    assert evaluate(parse_expression("1 - 2 + 3*4 - 2^3/4"), rules) == Fraction(9)
+    assert rules.calls == ["1", "2", "-1", "3", "4", "+2", "2", "3", "4", "-3"]
+    with pytest.raises(ParseError, match="not a number: a") as info:
+        evaluate(parse_expression("1 + a + b"), _Exact())  # the left-most error first
+    assert info.value.column == 5
+    with pytest.raises(ParseError) as info:
+        evaluate(parse_expression("7*2/0*3"), _Exact())
+    assert (info.value.column, info.value.term) == (5, "7*2/0")
+
+
+def test_evaluate_head_takes_the_start_of_a_chain_as_one_value():
+    class Head(_Exact):
+        def head(self, node):
+            if isinstance(node, Sum) and node.prefix(1) == Sub(N(1), S("x")):
+                return 1, Fraction(100)
+            return None
+
+    assert evaluate(parse_expression("1 - x + 5"), Head()) == 105
+    assert evaluate(parse_expression("(1 - x) - 5"), Head()) == 95
+
+
+def test_evaluate_a_sum_of_100000_terms_and_deep_nesting_without_recursion():
+    count = 100_000
+    tree = Sum(tuple(Num(k % 7) for k in range(count)), "+-" * (count // 2 - 1) + "+")
+    expected = sum(k % 7 if k == 0 or k % 2 else -(k % 7) for k in range(count))
+    assert evaluate(tree, _Exact()) == expected
+    nested = N(3)
+    for _ in range(100_000):  # far deeper than Python's recursion limit
+        nested = Neg(nested)
+    assert evaluate(nested, _Exact()) == 3
+    # as text, 100,000 terms are beyond the length budget: a clean ParseError, never RecursionError
+    with pytest.raises(ParseError, match="too long"):
+        parse_expression("+".join(["1"] * count))
+    longest = (MAX_INPUT_LENGTH + 1) // 2  # "1+1+...+1" just within the budget
+    assert evaluate(parse_expression("+".join(["1"] * longest)), _Exact()) == longest

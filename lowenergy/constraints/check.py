@@ -75,7 +75,7 @@ import mpmath
 from ..errors import InputError, LowEnergyError, NumericError, TableError
 from ..expansion.result import Expansion
 from ..integrand.model import poly_add, poly_scale
-from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold
+from ..parse import Call, Coef, Node, Num, Pow, Product, Rules, Sym, evaluate
 from ..words import regularize_word, word_to_indices
 from ..zeta.element import MZV, g_value, zeta
 from ..zeta.numeric import zeta_numeric
@@ -359,39 +359,39 @@ def _v_rational(ring, v: dict, nparams: int) -> Optional[Fraction]:
     return ring.as_rational(x)
 
 
-def _evaluate(
-    tree: Node,
-    constraint: Constraint,
-    lookup: Optional[Callable[[CoefficientRef], ParamPoly]],
-    nparams: int,
-    ring,
-) -> Dict[Tuple[int, ...], object]:
-    """Evaluate a validated relation tree; ``{parameter exponents: scalar}``.
+class _RelationRules(Rules):
+    """Values ``{(parameter exponents, power of pi): scalar}`` of a relation's nodes."""
 
-    Bottom-up through :func:`lowenergy.parse.fold` (no recursion: long sums
-    are deep left-leaning trees).
-    Errors carry columns of the relation text.
-    """
-    zero = (0,) * nparams
-    budget = [0]
+    def __init__(self, constraint: Constraint, lookup, nparams: int, ring) -> None:
+        self.constraint = constraint
+        self.lookup = lookup
+        self.nparams = nparams
+        self.ring = ring
+        self.zero = (0,) * nparams
+        self.budget = [0]
 
-    def leaf(node: Node) -> dict:
+    def leaf(self, node: Node) -> Optional[dict]:
+        ring, zero = self.ring, self.zero
         if isinstance(node, Num):
             return {(zero, 0): ring.rational(node.value)} if node.value else {}
         if isinstance(node, Sym):
             if node.name == "pi":
                 return {(zero, 1): ring.rational(Fraction(1))}
-            ref = constraint.ref_for(node.name, node.col) if lookup is not None else None
+            raise _fail(node, f"unknown name '{node.name}'")
+        if isinstance(node, Coef):
+            ref = self.constraint.ref_for(node) if self.lookup is not None else None
             if ref is None:
                 raise _fail(node, f"unknown name '{node.name}'")
             value = {}
-            for pe, x in lookup(ref).items():  # type: ignore[misc]
-                if len(pe) != nparams:
+            for pe, x in self.lookup(ref).items():
+                if len(pe) != self.nparams:
                     raise InputError(f"{ref.name} has parameter exponents {pe!r} not matching the parameters")
                 y = ring.coefficient(x)
                 if not ring.is_zero(y):
                     value[(pe, 0)] = y
             return value
+        if not isinstance(node, Call):
+            return None
         if node.name == "zeta":
             y = ring.zeta(tuple(int(a.value) for a in node.args))  # type: ignore[attr-defined]
         elif node.name == "G":
@@ -404,28 +404,45 @@ def _evaluate(
             raise _fail(node, f"unknown function '{node.name}'")
         return {} if ring.is_zero(y) else {(zero, 0): y}
 
-    def inner(node: Node, vals: list) -> dict:
-        if isinstance(node, Neg):
-            return {k: ring.neg(x) for k, x in vals[0].items()}
-        if isinstance(node, Add):
-            return _v_add(ring, vals[0], vals[1])
-        if isinstance(node, Sub):
-            return _v_add(ring, vals[0], vals[1], 1 if getattr(ring, "absolute", False) else -1)
-        if isinstance(node, Mul):
-            return _v_mul(ring, vals[0], vals[1], node, budget)
-        if isinstance(node, Div):
-            q = _v_rational(ring, vals[1], nparams)
-            if q is None:  # pragma: no cover - the static checks allow rational divisors only
-                raise _fail(node.right, "division by a non-rational quantity", "divide by rational numbers only")
-            if q == 0:
-                raise _fail(node.right, "division by zero")
-            inv = ring.rational(1 / q)  # |1/q| in the absolute ring
-            return {k: ring.mul(x, inv) for k, x in vals[0].items()}
-        if isinstance(node, Pow):
-            return _power(ring, vals[0], vals[1], node, nparams, budget)
-        raise _fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
+    def neg(self, value: dict, node: Node) -> dict:
+        return {k: self.ring.neg(x) for k, x in value.items()}
 
-    final = fold(tree, leaf, inner)
+    def add(self, left: dict, right: dict, node: Node, k: int) -> dict:
+        return _v_add(self.ring, left, right)
+
+    def sub(self, left: dict, right: dict, node: Node, k: int) -> dict:
+        return _v_add(self.ring, left, right, 1 if getattr(self.ring, "absolute", False) else -1)
+
+    def mul(self, left: dict, right: dict, node: Node, k: int) -> dict:
+        return _v_mul(self.ring, left, right, node, self.budget)
+
+    def div(self, left: dict, right: dict, node: Product, k: int) -> dict:
+        divisor = node.items[k]
+        q = _v_rational(self.ring, right, self.nparams)
+        if q is None:  # pragma: no cover - the static checks allow rational divisors only
+            raise _fail(divisor, "division by a non-rational quantity", "divide by rational numbers only")
+        if q == 0:
+            raise _fail(divisor, "division by zero")
+        inv = self.ring.rational(1 / q)  # |1/q| in the absolute ring
+        return {key: self.ring.mul(x, inv) for key, x in left.items()}
+
+    def power(self, base: dict, exponent: dict, node: Pow) -> dict:
+        return _power(self.ring, base, exponent, node, self.nparams, self.budget)
+
+
+def _evaluate(
+    tree: Node,
+    constraint: Constraint,
+    lookup: Optional[Callable[[CoefficientRef], ParamPoly]],
+    nparams: int,
+    ring,
+) -> Dict[Tuple[int, ...], object]:
+    """Evaluate a validated relation tree; ``{parameter exponents: scalar}``.
+
+    Bottom-up through :func:`lowenergy.parse.evaluate` with :class:`_RelationRules`.
+    Errors carry columns of the relation text.
+    """
+    final = evaluate(tree, _RelationRules(constraint, lookup, nparams, ring))
     out: Dict[Tuple[int, ...], object] = {}
     pi2 = None
     for (pe, p), x in final.items():

@@ -160,11 +160,12 @@ Coefficient names (shared with the tables, :mod:`lowenergy.tables.bases`):
     ``u = −s−t``) in the average of the contact terms over the six
     permutations of ``(s, t, u)``.  Order ``2a + 3b``.
 
-Blanks are allowed inside the brackets (``c[ 2, -1 ]``).  A coefficient
-reference is replaced by a placeholder identifier of the same length before
-the text goes to the parser, so every column in an error message is the
-column of the original text; placeholders are matched by name *and* column,
-so an identifier typed by the user can never stand for a coefficient.
+Blanks are allowed inside the brackets (``c[ 2, -1 ]``).  Coefficient
+references are part of the expression grammar (:mod:`lowenergy.parse`,
+``coefficients=``): each is one token and one
+:class:`~lowenergy.parse.Coef` node, checked by :func:`_check_reference` as
+the parser meets it, so every column in an error message is the column of
+the original text.
 
 Nothing is evaluated as Python code: TOML is read by :mod:`tomllib`, the
 relations by the hand-written parser, and trees are walked iteratively.
@@ -205,7 +206,7 @@ from typing import Dict, Iterator, List, Optional, Sequence, Tuple
 
 from ..errors import InputError, LowEnergyError, ParseError
 from ..limits import MAX_INT_DIGITS, int_text
-from ..parse import Call, Div, Node, Num, Pow, Sym, parse_expression, to_text
+from ..parse import Call, Coef, Neg, Node, Num, Pow, Product, Rules, Sum, Sym, evaluate, parse_expression, to_text, walk
 from .. import tomlpos
 from ..zeta.expression import zeta_indices
 
@@ -288,14 +289,14 @@ class CoefficientRef:
     """One coefficient name in a relation, e.g. ``c[2,-1]``.
 
     ``column`` is the 1-based column of its first character in the relation
-    text, ``placeholder`` the identifier that stands for it in the parse tree.
+    text (where its :class:`~lowenergy.parse.Coef` node starts), ``text``
+    its spelling there.
     """
 
     family: str
     a: int
     b: int
     column: int = field(default=0, compare=False)
-    placeholder: str = field(default="", compare=False)
     text: str = field(default="", compare=False)
     #: third index of a U-channel pole row ``c[i,0,k]`` (power k < 0 of U = -s-t), else None
     u: Optional[int] = None
@@ -330,8 +331,8 @@ class Constraint:
     name, relation, kind, note:
         As in the file (``relation`` with line breaks turned into blanks).
     tree:
-        The parsed relation (coefficient references are :class:`Sym`
-        placeholders; see :attr:`refs`).
+        The parsed relation (coefficient references are
+        :class:`~lowenergy.parse.Coef` nodes; see :attr:`refs`).
     refs:
         The coefficient references, in order of appearance (repeats included).
     rhs:
@@ -385,10 +386,10 @@ class Constraint:
             seen.setdefault(r.name, None)
         return tuple(seen)
 
-    def ref_for(self, placeholder: str, column: Optional[int]) -> Optional[CoefficientRef]:
-        """The reference a placeholder at ``column`` stands for (None if none)."""
+    def ref_for(self, node: Coef) -> Optional[CoefficientRef]:
+        """The reference of a :class:`~lowenergy.parse.Coef` node of :attr:`tree` (None if none)."""
         for r in self.refs:
-            if r.placeholder == placeholder and r.column == column:
+            if r.column == node.col:
                 return r
         return None
 
@@ -696,81 +697,12 @@ class _Layout:
 # coefficient references
 # --------------------------------------------------------------------------
 
-_DIGITS = frozenset("0123456789")
-_FIRST = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz_")
-_REST = _FIRST | _DIGITS
-_BLANKS = frozenset(" \t")
-_B36 = "0123456789abcdefghijklmnopqrstuvwxyz"
+def _check_reference(family: str, indices: Optional[Tuple[int, ...]], term: str, column: int) -> None:
+    """The constraint families' rules for a reference ``family[...]`` the parser found.
 
-
-def _placeholder(index: int, length: int) -> str:
-    digits = ""
-    while True:
-        index, r = divmod(index, 36)
-        digits = _B36[r] + digits
-        if not index:
-            break
-    name = "_k" + digits
-    return name + "_" * (length - len(name))
-
-
-def _pretokenize(text: str) -> Tuple[str, Tuple[CoefficientRef, ...]]:
-    """Replace every ``family[a,b]`` by a placeholder identifier of the same length.
-
-    Columns in the errors are 1-based columns of ``text``.
+    Called by :func:`lowenergy.parse.parse_expression` (``coefficients=``)
+    for each reference, left to right; raises to refuse it.
     """
-    out = list(text)
-    refs: List[CoefficientRef] = []
-    n = len(text)
-    i = 0
-    while i < n:
-        ch = text[i]
-        if ch in _DIGITS:
-            while i < n and (text[i] in _DIGITS or text[i] == "."):
-                i += 1
-            continue
-        if ch in _FIRST:
-            j = i
-            while j < n and text[j] in _REST:
-                j += 1
-            k = j
-            while k < n and text[k] in _BLANKS:
-                k += 1
-            if k < n and text[k] == "[":
-                ref, end = _read_ref(text, i, j, k, len(refs))
-                refs.append(ref)
-                out[i:end] = list(ref.placeholder)
-                i = end
-                continue
-            i = j
-            continue
-        if ch == "[":
-            raise ParseError(
-                "unexpected '['",
-                column=i + 1,
-                term="[",
-                hint=_FAMILY_HINT + "; group terms with ( )",
-            )
-        if ch == "]":
-            raise ParseError("unexpected ']'", column=i + 1, term="]", hint="this ']' has no matching '['")
-        i += 1
-    return "".join(out), tuple(refs)
-
-
-def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) -> Tuple[CoefficientRef, int]:
-    n = len(text)
-    family = text[start:name_end]
-    close = text.find("]", bracket)
-    stop = text.find("[", bracket + 1)
-    if close < 0 or (0 <= stop < close):
-        term = _short(text[start : (stop if stop >= 0 else n)].rstrip())
-        raise ParseError(
-            "unclosed '[' in a coefficient reference",
-            column=bracket + 1,
-            term=term,
-            hint=_ref_hint(family, text[bracket + 1 : (stop if stop >= 0 else n)]),
-        )
-    term = text[start : close + 1]
     if family not in FAMILIES:
         hint = _FAMILY_HINT
         close_match = difflib.get_close_matches(family, FAMILIES, n=1, cutoff=0.6)
@@ -778,47 +710,28 @@ def _read_ref(text: str, start: int, name_end: int, bracket: int, index: int) ->
             hint = f"did you mean {close_match[0]}[...]? " + hint
         elif family in ("zeta", "G", "pi"):
             hint = f"MZVs use round parentheses, e.g. zeta(3); {hint}"
-        raise ParseError(f"unknown coefficient family '{_short(family, 30)}'", column=start + 1, term=_short(term), hint=hint)
-    inner = text[bracket + 1 : close]
-    m = re.fullmatch(r"[ \t]*([+-]?)[ \t]*(\d+)[ \t]*,[ \t]*([+-]?)[ \t]*(\d+)[ \t]*", inner)
-    if not m and family == "c":
-        third = re.fullmatch(
-            r"[ \t]*([+-]?)[ \t]*(\d+)[ \t]*,[ \t]*([+-]?)[ \t]*(\d+)[ \t]*,[ \t]*([+-]?)[ \t]*(\d+)[ \t]*", inner)
-        if third:
-            return _read_u_ref(third, family, term, text, start, close, index)
-    if not m:
-        raise ParseError(
-            f"malformed coefficient reference '{_short(term, 40)}'",
-            column=start + 1,
-            term=_short(term),
-            hint=_ref_hint(family, inner),
-        )
-    if len(m.group(2)) > 6 or len(m.group(4)) > 6:
-        raise InputError(
-            f"index too large in {_short(term, 40)}",
-            column=start + 1,
-            term=_short(term),
-            hint=f"indices are at most {MAX_INDEX} in absolute value",
-        )
-    a = int(m.group(2)) * (-1 if m.group(1) == "-" else 1)
-    b = int(m.group(4)) * (-1 if m.group(3) == "-" else 1)
-    if abs(a) > MAX_INDEX or abs(b) > MAX_INDEX:
-        raise InputError(
-            f"index too large in {_short(term, 40)}",
-            column=start + 1,
-            term=_short(term),
-            hint=f"indices are at most {MAX_INDEX} in absolute value",
-        )
+        raise ParseError(f"unknown coefficient family '{_short(family, 30)}'", column=column, term=_short(term), hint=hint)
+    if indices is None or not (len(indices) == 2 or (family == "c" and len(indices) == 3)):
+        inner = term[term.index("[") + 1 : -1]
+        raise ParseError(f"malformed coefficient reference '{_short(term, 40)}'", column=column, term=_short(term),
+                         hint=_ref_hint(family, inner))
+    if max(abs(i) for i in indices) > MAX_INDEX:
+        raise InputError(f"index too large in {_short(term, 40)}", column=column, term=_short(term),
+                         hint=f"indices are at most {MAX_INDEX} in absolute value")
+    if len(indices) == 3:
+        a, b, k = indices
+        if b != 0 or k >= 0 or a < 0:
+            raise InputError(
+                f"invalid U-channel coefficient name {_short(term, 40)}", column=column, term=_short(term),
+                hint="c[i,0,k] (i >= 0, k < 0) is the coefficient of s^i U^k, U = -s-t, as expand writes it",
+            )
+        return
+    a, b = indices
     if family == "sym" and not (a >= b >= 0):
         hint = f"write sym[{b},{a}]" if b >= a >= 0 else "sym[i,j] needs i >= j >= 0 (contact terms only)"
-        raise InputError(f"invalid symmetric-basis name {term}", column=start + 1, term=term, hint=hint)
+        raise InputError(f"invalid symmetric-basis name {term}", column=column, term=term, hint=hint)
     if family == "sigma" and (a < 0 or b < 0):
-        raise InputError(
-            f"invalid sigma-basis name {term}", column=start + 1, term=term, hint="sigma[a,b] needs a, b >= 0"
-        )
-    end = close + 1
-    ref = CoefficientRef(family, a, b, column=start + 1, placeholder=_placeholder(index, end - start), text=term)
-    return ref, end
+        raise InputError(f"invalid sigma-basis name {term}", column=column, term=term, hint="sigma[a,b] needs a, b >= 0")
 
 
 def _ref_hint(family: str, inner: str) -> str:
@@ -834,47 +747,26 @@ def _ref_hint(family: str, inner: str) -> str:
     return "write c[i,j] with two integers, e.g. c[2,0] (U-channel pole rows of sphere expansions: c[i,0,k], k < 0)"
 
 
-def _read_u_ref(m, family: str, term: str, text: str, start: int, close: int,
-                index: int) -> Tuple[CoefficientRef, int]:
-    """``c[i,0,k]``: the coefficient of s^i U^k (k < 0), a U-channel pole row of a sphere expansion."""
-    if any(len(m.group(g)) > 6 for g in (2, 4, 6)):
-        raise InputError(f"index too large in {_short(term, 40)}", column=start + 1, term=_short(term),
-                         hint=f"indices are at most {MAX_INDEX} in absolute value")
-    a, b, k = (int(m.group(g + 1)) * (-1 if m.group(g) == "-" else 1) for g in (1, 3, 5))
-    if max(abs(a), abs(b), abs(k)) > MAX_INDEX:
-        raise InputError(f"index too large in {_short(term, 40)}", column=start + 1, term=_short(term),
-                         hint=f"indices are at most {MAX_INDEX} in absolute value")
-    if b != 0 or k >= 0 or a < 0:
-        raise InputError(
-            f"invalid U-channel coefficient name {_short(term, 40)}", column=start + 1, term=_short(term),
-            hint="c[i,0,k] (i >= 0, k < 0) is the coefficient of s^i U^k, U = -s-t, as expand writes it",
-        )
-    end = close + 1
-    ref = CoefficientRef(family, a, b, column=start + 1, placeholder=_placeholder(index, end - start), text=term, u=k)
-    return ref, end
-
-
-def _restore(text: Optional[str], refs: Sequence[CoefficientRef]) -> Optional[str]:
-    """Put the original coefficient names back into a message."""
-    if not text:
-        return text
-    for r in sorted(refs, key=lambda r: -len(r.placeholder)):
-        if r.placeholder in text:
-            text = text.replace(r.placeholder, r.text)
-    return text
+def _reference(node: Coef, text: str) -> CoefficientRef:
+    """The :class:`CoefficientRef` of a parsed reference (``text`` is the parsed text)."""
+    start = (node.col or 1) - 1
+    spelled = text[start : text.index("]", start) + 1]
+    a, b = node.indices[0], node.indices[1]
+    u = node.indices[2] if len(node.indices) == 3 else None
+    return CoefficientRef(node.family, a, b, column=start + 1, text=spelled, u=u)
 
 
 def _parse_with_refs(text: str) -> Tuple[Node, Tuple[CoefficientRef, ...]]:
-    """Pre-tokenize and parse; errors carry columns of ``text``."""
-    replaced, refs = _pretokenize(text)
+    """Parse a relation (coefficient references are :class:`Coef` nodes); errors carry columns of ``text``."""
     try:
-        tree = parse_expression(replaced)
-    except LowEnergyError as err:
-        err.message = _restore(err.message, refs) or err.message
-        err.args = (err.message,)
-        err.term = _restore(err.term, refs)
-        err.hint = _restore(err.hint, refs)
+        tree = parse_expression(text, coefficients=_check_reference)
+    except ParseError as err:
+        if err.message.startswith("unclosed '['") and err.term and "[" in err.term:
+            # the parser's hint is generic; name the U-channel rows when three indices were meant
+            family, _, inner = err.term.partition("[")
+            err.hint = _ref_hint(family.strip(), inner)
         raise
+    refs = tuple(_reference(node, text) for node in walk(tree) if isinstance(node, Coef))
     return tree, refs
 
 
@@ -884,48 +776,42 @@ def _parse_with_refs(text: str) -> Tuple[Node, Tuple[CoefficientRef, ...]]:
 
 
 def _subtree_nodes(node: Node) -> Iterator[Node]:
-    stack = [node]
-    while stack:
-        item = stack.pop()
-        yield item
-        stack.extend(_kids(item))
+    return walk(node)
 
 
-def _kids(node: Node) -> Tuple[Node, ...]:
-    if isinstance(node, Call):
-        return tuple(node.letters or ()) + tuple(node.args)
-    for attrs in (("left", "right"), ("base", "exponent"), ("operand",)):
-        if all(hasattr(node, a) for a in attrs):
-            return tuple(getattr(node, a) for a in attrs)
-    return ()
+def _divisors(node: Node) -> Iterator[Node]:
+    """The divisors of a product (the factors after each ``/``)."""
+    if isinstance(node, Product):
+        for op, item in zip(node.ops, node.items[1:]):
+            if op == "/":
+                yield item
 
 
-def _node_text(node: Node, refs: Sequence[CoefficientRef]) -> str:
-    return _short(_restore(to_text(node), refs) or "")
+def _node_text(node: Node) -> str:
+    return _short(to_text(node))
 
 
-def _validate(tree: Node, refs: Sequence[CoefficientRef], *, allow_refs: bool) -> None:
+def _validate(tree: Node, *, allow_refs: bool) -> None:
     """Static checks; raise with a column of the text.
 
-    Every name must be a placeholder at its own column (when ``allow_refs``)
-    or ``pi``; calls are ``zeta(...)`` and ``G(...; 1)`` with literal
-    indices; exponents and divisors are rational constants.
+    Coefficient references are allowed when ``allow_refs``; the only name is
+    ``pi``; calls are ``zeta(...)`` and ``G(...; 1)`` with literal indices;
+    exponents and divisors are rational constants.
     """
-    by_key = {(r.placeholder, r.column): r for r in refs}
 
     def fail(node: Node, message: str, hint: Optional[str] = None) -> InputError:
-        return InputError(message, column=getattr(node, "col", None), term=_node_text(node, refs), hint=hint)
+        return InputError(message, column=getattr(node, "col", None), term=_node_text(node), hint=hint)
 
     for node in _subtree_nodes(tree):
+        if isinstance(node, Coef):
+            if not allow_refs:
+                raise fail(
+                    node,
+                    "the exact right-hand side may not contain coefficients",
+                    "move coefficients into 'relation'; rhs is a number such as zeta(3) or 0",
+                )
+            continue
         if isinstance(node, Sym):
-            if (node.name, node.col) in by_key:
-                if not allow_refs:
-                    raise fail(
-                        node,
-                        "the exact right-hand side may not contain coefficients",
-                        "move coefficients into 'relation'; rhs is a number such as zeta(3) or 0",
-                    )
-                continue
             if node.name == "pi":
                 continue
             name = node.name
@@ -937,23 +823,22 @@ def _validate(tree: Node, refs: Sequence[CoefficientRef], *, allow_refs: bool) -
                 hint = (_FAMILY_HINT + "; " + _CONSTANT_HINT) if allow_refs else _CONSTANT_HINT
             raise fail(node, f"unknown name '{_short(name, 30)}'", hint)
         elif isinstance(node, Call):
-            _validate_call(node, refs, fail)
+            _validate_call(node, fail)
         elif isinstance(node, Pow):
-            if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.exponent)):
+            if any(isinstance(k, (Sym, Call, Coef)) for k in _subtree_nodes(node.exponent)):
                 raise fail(node.exponent, "exponents must be rational numbers", "write e.g. c[2,0]^2")
-        elif isinstance(node, Div):
-            if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.right)):
-                raise fail(
-                    node.right,
-                    "division is by rational numbers only",
-                    "relations are polynomials in the coefficients; multiply through instead",
-                )
+        else:
+            for divisor in _divisors(node):
+                if any(isinstance(k, (Sym, Call, Coef)) for k in _subtree_nodes(divisor)):
+                    raise fail(
+                        divisor,
+                        "division is by rational numbers only",
+                        "relations are polynomials in the coefficients; multiply through instead",
+                    )
 
 
-def _validate_call(node: Call, refs, fail) -> None:
+def _validate_call(node: Call, fail) -> None:
     name = node.name
-    if any(node.name == r.placeholder for r in refs):
-        raise fail(node, "a coefficient cannot be called like a function", "write c[i,j]*(...) for a product")
     if name == "zeta":
         indices = zeta_indices(node, fail)
         if indices[0] == 1:
@@ -977,7 +862,7 @@ def _validate_call(node: Call, refs, fail) -> None:
         if node.letters is not None or len(node.args) != 1:
             raise fail(node, "sv takes one MZV expression", "write sv(zeta(5,3))")
         for k in _subtree_nodes(node.args[0]):
-            if isinstance(k, Sym) and k.name != "pi":
+            if isinstance(k, Coef) or (isinstance(k, Sym) and k.name != "pi"):
                 raise fail(k, "sv applies to MZV constants only", "write e.g. sv(zeta(5,3))*c[2,0]")
         return
     if name in FAMILIES:
@@ -1151,7 +1036,7 @@ class _Reader:
                 raise self.place(err, rel_at, rel_line, label)
         try:
             tree, refs = _parse_with_refs(rel_text)
-            _validate(tree, refs, allow_refs=True)
+            _validate(tree, allow_refs=True)
         except LowEnergyError as err:
             raise self.place(err, rel_at, rel_line, label) from None
 
@@ -1192,8 +1077,8 @@ class _Reader:
                 rhs_text = value.replace("\r", " ").replace("\n", " ")
                 rhs_at = self.layout.string_positions(rhs_offset, value) if rhs_offset is not None else ()
             try:
-                rhs_tree, rhs_refs = _parse_with_refs(rhs_text)
-                _validate(rhs_tree, rhs_refs, allow_refs=False)
+                rhs_tree, _ = _parse_with_refs(rhs_text)
+                _validate(rhs_tree, allow_refs=False)
             except LowEnergyError as err:
                 raise self.place(err, rhs_at, rhs_line, label, what="rhs") from None
         else:
@@ -1537,88 +1422,105 @@ _POLE_REQUIRED_HINTS = {
 }
 
 
-def _rational_constant(node: Node) -> Optional[Fraction]:
-    """The value of a tree of numbers and + - * / ^ (integer powers), else None."""
-    from ..parse import Add, Mul, Neg, Sub
+class _NotConstant(Exception):
+    """Raised inside :func:`_rational_constant` when the tree is not a rational constant."""
 
-    def leaf(n: Node):
-        return n.value if isinstance(n, Num) else None
 
-    def inner(n: Node, vals):
-        if any(v is None for v in vals):
-            return None
-        if isinstance(n, Neg):
-            return -vals[0]
-        if isinstance(n, Add):
-            return vals[0] + vals[1]
-        if isinstance(n, Sub):
-            return vals[0] - vals[1]
-        if isinstance(n, Mul):
-            return vals[0] * vals[1]
-        if isinstance(n, Div):
-            return vals[0] / vals[1] if vals[1] else None
-        if isinstance(n, Pow):
-            base, e = vals
-            if e.denominator != 1 or abs(e) > 64 or (base == 0 and e < 0):
-                return None
-            return base ** int(e)
+class _ConstantRules(Rules):
+    def leaf(self, n: Node):
+        if isinstance(n, Num):
+            return n.value
+        if isinstance(n, (Sym, Call, Coef)):
+            raise _NotConstant
         return None
 
-    from ..parse import fold
+    def neg(self, a, node):
+        return -a
 
-    return fold(node, leaf, inner)
+    def add(self, a, b, node, k):
+        return a + b
+
+    def sub(self, a, b, node, k):
+        return a - b
+
+    def mul(self, a, b, node, k):
+        return a * b
+
+    def div(self, a, b, node, k):
+        if not b:
+            raise _NotConstant
+        return a / b
+
+    def power(self, base, e, node):
+        if e.denominator != 1 or abs(e) > 64 or (base == 0 and e < 0):
+            raise _NotConstant
+        return base ** int(e)
 
 
-def _linear_in_n(tree: Node) -> Tuple[Fraction, Fraction]:
-    """``(a, b)`` with ``tree = a·n + b`` (rationals); the only name allowed is ``n``."""
-    from ..parse import Add, Mul, Neg, Sub, fold
+def _rational_constant(node: Node) -> Optional[Fraction]:
+    """The value of a tree of numbers and + - * / ^ (integer powers), else None."""
+    try:
+        return evaluate(node, _ConstantRules())
+    except _NotConstant:
+        return None
 
+
+class _LinearRules(Rules):
+    """``(a, b)`` for ``a·n + b``."""
+
+    @staticmethod
     def fail(node: Node, message: str) -> InputError:
         return InputError(message, column=getattr(node, "col", None), term=_short(to_text(node)),
                           hint='max_degree is an integer or linear in the level n, e.g. "n+1" or "2*n-1"')
 
-    def leaf(node: Node):
+    def leaf(self, node: Node):
         if isinstance(node, Num):
             return (Fraction(0), node.value)
         if isinstance(node, Sym) and node.name == "n":
             return (Fraction(1), Fraction(0))
         if isinstance(node, Sym):
-            raise fail(node, f"unknown name '{_short(node.name, 20)}'")
-        raise fail(node, "no functions here")
+            raise self.fail(node, f"unknown name '{_short(node.name, 20)}'")
+        if isinstance(node, (Call, Coef)):
+            raise self.fail(node, "no functions here")
+        return None
 
-    def inner(node: Node, vals):
-        if isinstance(node, Call):
-            raise fail(node, "no functions here")
-        if isinstance(node, Neg):
-            return (-vals[0][0], -vals[0][1])
-        if isinstance(node, Add):
-            return (vals[0][0] + vals[1][0], vals[0][1] + vals[1][1])
-        if isinstance(node, Sub):
-            return (vals[0][0] - vals[1][0], vals[0][1] - vals[1][1])
-        if isinstance(node, Mul):
-            (a1, b1), (a2, b2) = vals
-            if a1 and a2:
-                raise fail(node, "not linear in n")
-            return (a1 * b2 + a2 * b1, b1 * b2)
-        if isinstance(node, Div):
-            (a1, b1), (a2, b2) = vals
-            if a2 or not b2:
-                raise fail(node, "division by n or by zero")
-            return (a1 / b2, b1 / b2)
-        if isinstance(node, Pow):
-            (a1, b1), (a2, b2) = vals
-            if a2 or b2.denominator != 1 or b2 < 0 or b2 > 64:
-                raise fail(node, "exponents must be small non-negative integers")
-            if b2 == 0:
-                return (Fraction(0), Fraction(1))
-            if b2 == 1:
-                return (a1, b1)
-            if a1:
-                raise fail(node, "not linear in n")
-            return (Fraction(0), b1 ** int(b2))
-        raise fail(node, "unexpected term")  # pragma: no cover
+    def neg(self, v, node):
+        return (-v[0], -v[1])
 
-    return fold(tree, leaf, inner)
+    def add(self, v, w, node, k):
+        return (v[0] + w[0], v[1] + w[1])
+
+    def sub(self, v, w, node, k):
+        return (v[0] - w[0], v[1] - w[1])
+
+    def mul(self, v, w, node, k):
+        (a1, b1), (a2, b2) = v, w
+        if a1 and a2:
+            raise self.fail(node.prefix(k), "not linear in n")
+        return (a1 * b2 + a2 * b1, b1 * b2)
+
+    def div(self, v, w, node, k):
+        (a1, b1), (a2, b2) = v, w
+        if a2 or not b2:
+            raise self.fail(node.prefix(k), "division by n or by zero")
+        return (a1 / b2, b1 / b2)
+
+    def power(self, v, w, node):
+        (a1, b1), (a2, b2) = v, w
+        if a2 or b2.denominator != 1 or b2 < 0 or b2 > 64:
+            raise self.fail(node, "exponents must be small non-negative integers")
+        if b2 == 0:
+            return (Fraction(0), Fraction(1))
+        if b2 == 1:
+            return (a1, b1)
+        if a1:
+            raise self.fail(node, "not linear in n")
+        return (Fraction(0), b1 ** int(b2))
+
+
+def _linear_in_n(tree: Node) -> Tuple[Fraction, Fraction]:
+    """``(a, b)`` with ``tree = a·n + b`` (rationals); the only name allowed is ``n``."""
+    return evaluate(tree, _LinearRules())
 
 
 def _validate_numerator(tree: Node, other: str, variable: Optional[str] = None) -> None:
@@ -1639,7 +1541,7 @@ def _validate_numerator(tree: Node, other: str, variable: Optional[str] = None) 
                 hint = f"the numerator of a pole in {pole_var} is a polynomial in {other} only"
             raise fail(node, f"unknown name '{_short(node.name, 30)}'", hint)
         if isinstance(node, Call):
-            _validate_call(node, (), fail)
+            _validate_call(node, fail)
         elif isinstance(node, Pow):
             if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.exponent)):
                 raise fail(node.exponent, "exponents must be integers", f"write e.g. {other}^2")
@@ -1648,10 +1550,11 @@ def _validate_numerator(tree: Node, other: str, variable: Optional[str] = None) 
                 if any(isinstance(k, Sym) and k.name == other for k in _subtree_nodes(node.base)):
                     raise fail(node.exponent, f"powers of {other} must be integers from 0 to 1000",
                                "a numerator is a polynomial")
-        elif isinstance(node, Div):
-            if any(isinstance(k, (Sym, Call)) for k in _subtree_nodes(node.right)):
-                raise fail(node.right, "division is by rational numbers only",
-                           "a numerator is a polynomial; write (t+1)*(t+2)/2")
+        else:
+            for divisor in _divisors(node):
+                if any(isinstance(k, (Sym, Call, Coef)) for k in _subtree_nodes(divisor)):
+                    raise fail(divisor, "division is by rational numbers only",
+                               "a numerator is a polynomial; write (t+1)*(t+2)/2")
 
 
 _REQUIRED_HINTS = {

@@ -57,7 +57,7 @@ from typing import Dict, List, Optional, Sequence, Tuple
 
 from ..errors import InputError, LowEnergyError
 from ..expansion.result import Expansion
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold
+from ..parse import LEAVES, Node, Pow, Product, Rules, Sym, evaluate, walk
 from ..zeta.element import MZV
 from ..zeta.expression import evaluate_tree
 from .model import CrossingConstraint, PoleConstraint
@@ -165,18 +165,53 @@ def _umul(a: UniPoly, b: UniPoly) -> UniPoly:
 
 
 def _has_name(node: Node, name: str) -> bool:
-    stack = [node]
-    while stack:
-        item = stack.pop()
-        if isinstance(item, Sym) and item.name == name:
-            return True
-        if isinstance(item, (Neg,)):
-            stack.append(item.operand)
-        elif isinstance(item, Pow):
-            stack.extend((item.base, item.exponent))
-        elif isinstance(item, (Add, Sub, Mul, Div)):
-            stack.extend((item.left, item.right))
-    return False
+    return any(isinstance(item, Sym) and item.name == name for item in walk(node))
+
+
+class _NumeratorRules(Rules):
+    """``{power of the variable: MZV}``; sub-trees free of the variable are MZV constants."""
+
+    def __init__(self, variable: str, store) -> None:
+        self.variable = variable
+        self.store = store
+
+    def leaf(self, node: Node) -> Optional[UniPoly]:
+        if not _has_name(node, self.variable):
+            value = evaluate_tree(node, store=self.store)
+            return {0: value} if value else {}
+        if isinstance(node, Sym):
+            return {1: MZV.one()}
+        if isinstance(node, LEAVES):
+            raise InputError("unexpected term in a numerator")  # pragma: no cover - the reader refuses it
+        return None
+
+    def neg(self, value: UniPoly, node: Node) -> UniPoly:
+        return {k: -v for k, v in value.items()}
+
+    def add(self, left: UniPoly, right: UniPoly, node: Node, k: int) -> UniPoly:
+        return _uadd(left, right, 1)
+
+    def sub(self, left: UniPoly, right: UniPoly, node: Node, k: int) -> UniPoly:
+        return _uadd(left, right, -1)
+
+    def mul(self, left: UniPoly, right: UniPoly, node: Node, k: int) -> UniPoly:
+        return _umul(left, right)
+
+    def div(self, left: UniPoly, right: UniPoly, node: Product, k: int) -> UniPoly:
+        d = right.get(0)
+        if set(right) != {0} or not d or not d.is_rational():
+            raise InputError("division by zero or by an irrational number in a numerator", term=str(node.items[k]))
+        q = 1 / d.rational_value()
+        return {key: v * q for key, v in left.items()}
+
+    def power(self, base: UniPoly, exponent: UniPoly, node: Pow) -> UniPoly:
+        e = exponent.get(0, MZV())
+        if set(exponent) - {0} or not e.is_rational() or e.rational_value().denominator != 1 or e.rational_value() < 0:
+            raise InputError("powers of the variable must be non-negative integers", term=str(node.exponent))
+        out: UniPoly = {0: MZV.one()}
+        for _ in range(int(e.rational_value())):
+            out = _umul(out, base)
+        return out
 
 
 def evaluate_numerator(tree: Node, variable: str, store=None) -> UniPoly:
@@ -192,34 +227,7 @@ def evaluate_numerator(tree: Node, variable: str, store=None) -> UniPoly:
     >>> {k: v.to_text() for k, v in sorted(p.items())}
     {0: '1', 1: '3/2', 2: '1/2'}
     """
-    if not _has_name(tree, variable):
-        value = evaluate_tree(tree, store=store)
-        return {0: value} if value else {}
-    if isinstance(tree, Sym):
-        return {1: MZV.one()}
-    if isinstance(tree, Neg):
-        return {k: -v for k, v in evaluate_numerator(tree.operand, variable, store).items()}
-    if isinstance(tree, (Add, Sub)):
-        return _uadd(evaluate_numerator(tree.left, variable, store), evaluate_numerator(tree.right, variable, store),
-                     1 if isinstance(tree, Add) else -1)
-    if isinstance(tree, Mul):
-        return _umul(evaluate_numerator(tree.left, variable, store), evaluate_numerator(tree.right, variable, store))
-    if isinstance(tree, Div):
-        d = evaluate_tree(tree.right, store=store)
-        if not d or not d.is_rational():
-            raise InputError("division by zero or by an irrational number in a numerator", term=str(tree.right))
-        q = 1 / d.rational_value()
-        return {k: v * q for k, v in evaluate_numerator(tree.left, variable, store).items()}
-    if isinstance(tree, Pow):
-        e = evaluate_tree(tree.exponent, store=store)
-        if not e.is_rational() or e.rational_value().denominator != 1 or e.rational_value() < 0:
-            raise InputError("powers of the variable must be non-negative integers", term=str(tree.exponent))
-        base = evaluate_numerator(tree.base, variable, store)
-        out: UniPoly = {0: MZV.one()}
-        for _ in range(int(e.rational_value())):
-            out = _umul(out, base)
-        return out
-    raise InputError("unexpected term in a numerator")  # pragma: no cover - the reader refuses it
+    return evaluate(tree, _NumeratorRules(variable, store))
 
 
 # ---------------------------------------------------------------------------

@@ -5,7 +5,8 @@ document is edited in place with tomlkit, so comments, key order, blank lines
 and a multi-line ``integrand`` string stay as they were; only the values of
 ``integrand``, ``parameters`` and ``notes`` change.
 
-Inside the expression each solved parameter is replaced token by token and
+Inside the expression each solved parameter is replaced token by token (the
+tokens of the expression grammar, :func:`lowenergy.parse.tokenize`) and
 written tidily: ``a1*s*t`` with ``a1 = 1`` becomes ``s*t``, ``+ a2*X`` with
 ``a2 = -1/2`` becomes ``- 1/2*X``, a term whose factor is 0 is dropped, and
 a value is parenthesized only where the grammar needs it (after ``/`` or
@@ -25,39 +26,31 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Dict, List, Optional, Tuple
 
+from ..parse import tokenize
+
 __all__ = ["tidy_substitute", "rewrite_toml"]
 
 Affine = Tuple[Fraction, Dict[str, Fraction]]
 
-_DIGITS = frozenset("0123456789")
-_IDENT_FIRST = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz_")
-_IDENT_REST = _IDENT_FIRST | _DIGITS
-_SPACE = frozenset(" \t\r\n")
-
-
 def _tokens(text: str) -> List[List[str]]:
-    """``[[kind, text], ...]`` with kinds num, name, space, op."""
+    """``[[kind, text], ...]`` with kinds num, name, space, op, covering ``text``.
+
+    The tokens are those of the expression grammar (:func:`lowenergy.parse.tokenize`);
+    the blanks and line breaks between them become ``space`` entries, so that
+    joining the texts gives ``text`` back.
+    """
+    flat = text.replace("\r", " ").replace("\n", " ")  # same length: columns stay those of text
     out: List[List[str]] = []
-    i, n = 0, len(text)
-    while i < n:
-        ch = text[i]
-        j = i + 1
-        if ch in _DIGITS:
-            while j < n and (text[j] in _DIGITS or text[j] == "."):
-                j += 1
-            kind = "num"
-        elif ch in _IDENT_FIRST:
-            while j < n and text[j] in _IDENT_REST:
-                j += 1
-            kind = "name"
-        elif ch in _SPACE:
-            while j < n and text[j] in _SPACE:
-                j += 1
-            kind = "space"
-        else:
-            kind = "op"
-        out.append([kind, text[i:j]])
-        i = j
+    pos = 0
+    for token in tokenize(flat):
+        start = token.col - 1
+        if start > pos:
+            out.append(["space", text[pos:start]])
+        end = start + len(token.text)
+        out.append([token.kind if token.kind in ("num", "name") else "op", text[start:end]])
+        pos = end
+    if pos < len(text):
+        out.append(["space", text[pos:]])
     return out
 
 

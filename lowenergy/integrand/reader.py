@@ -111,7 +111,7 @@ from typing import Dict, List, Optional, Sequence, Tuple
 
 from ..errors import InputError, LowEnergyError, RegularizationError
 from ..words import shuffle
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, parse_expression, to_text
+from ..parse import Call, Neg, Node, Num, Pow, Product, Rules, Sum, Sym, children, evaluate, parse_expression, to_text
 from ..poly import add_into, add_term
 from .. import tomlpos
 from ..limits import (
@@ -596,32 +596,93 @@ def _linear(e: _Exp) -> LinearExponent:
 
 
 def _summands(tree: Node, evaluator: "_Evaluator"):
-    """Top-level summands with their signs, left to right (no recursion)."""
+    """Top-level summands with their signs, left to right.
+
+    Parenthesized sums among the terms are opened too (with their sign); a
+    leading ``1 - x`` stays one summand.
+    """
     out = []
     stack = [(tree, 1)]
     while stack:
         node, sign = stack.pop()
-        if isinstance(node, (Add, Sub)) and not _is_one_minus_x_shape(node, evaluator.xname):
+        if isinstance(node, Sum) and not _is_one_minus_x_shape(node, evaluator.xname):
             evaluator.check_sum(node)
-            stack.append((node.right, sign if isinstance(node, Add) else -sign))
-            stack.append((node.left, sign))
+            start = 2 if _has_one_minus_x_head(node, evaluator.xname) else 1
+            parts = [(node.prefix(start - 1), sign)]
+            parts += [(item, sign if op == "+" else -sign) for op, item in zip(node.ops[start - 1:], node.items[start:])]
+            stack.extend(reversed(parts))
         else:
             out.append((node, sign))
     return out
 
 
 def _is_one_minus_x_shape(node: Node, xname: Optional[str] = None) -> bool:
+    """``1 - x`` or ``-x + 1``, the binomial of the alphabet {0, 1}."""
     def is_x(n: Node) -> bool:
         return isinstance(n, Sym) and (xname is None or n.name == xname)
 
     def is_one(n: Node) -> bool:
         return isinstance(n, Num) and n.value == 1
 
-    if isinstance(node, Sub):
-        return is_one(node.left) and is_x(node.right)
-    if isinstance(node, Add):
-        return is_one(node.right) and isinstance(node.left, Neg) and is_x(node.left.operand)
-    return False
+    if not isinstance(node, Sum) or len(node.items) != 2:
+        return False
+    first, second = node.items
+    if node.ops == "-":
+        return is_one(first) and is_x(second)
+    return is_one(second) and isinstance(first, Neg) and is_x(first.operand)
+
+
+def _has_one_minus_x_head(node: Sum, xname: Optional[str]) -> bool:
+    """A longer sum starting with ``1 - x`` (or ``-x + 1``): ``1 - x + a`` is ``(1-x) + a``."""
+    return len(node.items) > 2 and _is_one_minus_x_shape(node.prefix(1), xname)
+
+
+class _ReaderRules(Rules):
+    """:func:`lowenergy.parse.evaluate` driving an :class:`_Evaluator`.
+
+    The operations keep their binary messages: an error of the k-th
+    operation of a long product names the product up to that factor.
+    """
+
+    def __init__(self, evaluator: "_Evaluator") -> None:
+        self.ev = evaluator
+
+    def leaf(self, node: Node) -> Optional[_Value]:
+        return self.ev.leaf(node)
+
+    def head(self, node: Node) -> Optional[Tuple[int, _Value]]:
+        return self.ev.head(node)
+
+    def neg(self, value: _Value, node: Node) -> _Value:
+        return self.ev.negate(value)
+
+    def add(self, left: _Value, right: _Value, node: Node, k: int) -> _Value:
+        return self.ev.add(left, right, 1)
+
+    def sub(self, left: _Value, right: _Value, node: Node, k: int) -> _Value:
+        return self.ev.add(left, right, -1)
+
+    def mul(self, left: _Value, right: _Value, node: Product, k: int) -> _Value:
+        try:
+            return self.ev.mul(left, right, node)
+        except LowEnergyError as err:
+            raise _at_part(err, node, k) from None
+
+    def div(self, left: _Value, right: _Value, node: Product, k: int) -> _Value:
+        try:
+            return self.ev.div(left, right, node, node.items[k])
+        except LowEnergyError as err:
+            raise _at_part(err, node, k) from None
+
+    def power(self, base: _Value, exponent: _Value, node: Pow) -> _Value:
+        return self.ev.power(base, exponent, node)
+
+
+def _at_part(err: LowEnergyError, node: Product, k: int) -> LowEnergyError:
+    """Name ``node.prefix(k)``, the product up to the k-th factor, in an error about ``node``."""
+    if k < len(node.items) - 1 and err.term is not None and err.term == _node_text(node):
+        err.term = _node_text(node.prefix(k))
+    return err
 
 
 class _Evaluator:
@@ -674,44 +735,11 @@ class _Evaluator:
 
     # -- evaluation ------------------------------------------------------------------
     def evaluate(self, tree: Node) -> _Value:
-        """Evaluate a tree bottom-up with an explicit stack."""
-        results: List[_Value] = []
-        stack: List[Tuple[Node, bool]] = [(tree, False)]
-        while stack:
-            node, ready = stack.pop()
-            if not ready:
-                leaf = self.leaf(node)
-                if leaf is not None:
-                    results.append(leaf)
-                    continue
-                stack.append((node, True))
-                if isinstance(node, Neg):
-                    stack.append((node.operand, False))
-                elif isinstance(node, Pow):
-                    stack.append((node.exponent, False))
-                    stack.append((node.base, False))
-                else:
-                    stack.append((node.right, False))  # type: ignore[attr-defined]
-                    stack.append((node.left, False))  # type: ignore[attr-defined]
-                continue
-            if isinstance(node, Neg):
-                results.append(self.negate(results.pop()))
-                continue
-            right = results.pop()
-            left = results.pop()
-            if isinstance(node, Add):
-                results.append(self.add(left, right, 1))
-            elif isinstance(node, Sub):
-                results.append(self.add(left, right, -1))
-            elif isinstance(node, Mul):
-                results.append(self.mul(left, right, node))
-            elif isinstance(node, Div):
-                results.append(self.div(left, right, node))
-            elif isinstance(node, Pow):
-                results.append(self.power(left, right, node))
-            else:  # pragma: no cover - the parser has no other node types
-                raise self.fail(node, f"unsupported syntax {type(node).__name__}")
-        return results.pop()
+        """Evaluate a tree with :func:`lowenergy.parse.evaluate`."""
+        return evaluate(tree, _ReaderRules(self))
+
+    def one_minus_x(self) -> _Value:
+        return {(_ZERO_EXP, (1, Fraction(0), None), ()): {(0, self.zero_exps, ()): Fraction(1)}}
 
     def leaf(self, node: Node) -> Optional[_Value]:
         """The value of a node that is evaluated as a whole, else None."""
@@ -721,23 +749,39 @@ class _Evaluator:
             return self.symbol(node)
         if isinstance(node, Call):
             return self.call(node)
-        if isinstance(node, (Add, Sub)):
+        if isinstance(node, Sum):
             if _is_one_minus_x_shape(node, self.xname):
-                return {(_ZERO_EXP, (1, Fraction(0), None), ()): {(0, self.zero_exps, ()): Fraction(1)}}
+                return self.one_minus_x()
             self.check_sum(node)
         return None
 
-    def check_sum(self, node: Node) -> None:
-        """Refuse a bare x as a direct operand of + or - (other than in 1-x)."""
-        if self.is_bare_x(node.left) or self.is_bare_x(node.right):  # type: ignore[attr-defined]
-            x = self.xname
-            raise self.fail(
-                node,
-                f"{x} is added to other terms: the only binomial in {x} is (1-{x})",
-                f"{x} enters through {x}^(e), (1-{x})^(e) and log, Li, G of {x} or 1-{x} "
-                f"(the letter of e.g. 1+{x} is outside the alphabet {{0, 1}}); "
-                f"for a polynomial in {x} write its monomials with explicit powers, e.g. 1 + {x}^1",
-            )
+    def head(self, node: Node) -> Optional[Tuple[int, _Value]]:
+        """``1 - x + ...``: the binomial ``1 - x`` is one factor, then the other terms are added."""
+        if isinstance(node, Sum) and _has_one_minus_x_head(node, self.xname):
+            return 1, self.one_minus_x()
+        return None
+
+    def check_sum(self, node: Sum) -> None:
+        """Refuse a bare x as a term of a sum (other than in 1-x).
+
+        The message names the sum up to that term (the last such term is
+        found first), as for a chain of binary ``+`` and ``-``.
+        """
+        items = node.items
+        last = 1 if _has_one_minus_x_head(node, self.xname) else 0
+        for k in range(len(items) - 1, last, -1):
+            if self.is_bare_x(items[k]) or (k == 1 and self.is_bare_x(items[0])):
+                raise self.added_x(node.prefix(k))
+
+    def added_x(self, part: Node) -> LowEnergyError:
+        x = self.xname
+        return self.fail(
+            part,
+            f"{x} is added to other terms: the only binomial in {x} is (1-{x})",
+            f"{x} enters through {x}^(e), (1-{x})^(e) and log, Li, G of {x} or 1-{x} "
+            f"(the letter of e.g. 1+{x} is outside the alphabet {{0, 1}}); "
+            f"for a polynomial in {x} write its monomials with explicit powers, e.g. 1 + {x}^1",
+        )
 
     def symbol(self, node: Sym) -> _Value:
         name = node.name
@@ -1033,7 +1077,7 @@ class _Evaluator:
                         return allnames[i]
         return None
 
-    def div(self, a: _Value, b: _Value, node: Div) -> _Value:
+    def div(self, a: _Value, b: _Value, node: Node, divisor: Node) -> _Value:
         mono = self.monomial_of(b)
         if mono is not None and mono[2] != 0:
             xe, ye, q = mono
@@ -1042,16 +1086,16 @@ class _Evaluator:
             }
             return self.mul(a, inverse, node)
         if not b:
-            raise self.fail(node.right, "division by zero")
+            raise self.fail(divisor, "division by zero")
         name = self.variable_in(b)
         if name is not None:
             raise self.fail(
-                node.right,
-                f"division by {_node_text(node.right)}: the integrand is not a polynomial in {name}",
+                divisor,
+                f"division by {_node_text(divisor)}: the integrand is not a polynomial in {name}",
                 f"{name} may appear only polynomially; rescale the integrand instead",
             )
         raise self.fail(
-            node.right,
+            divisor,
             "division only by non-zero rational numbers (and by x, 1-x)",
             "multiply by the inverse instead, e.g. x^(-1); MZVs cannot be inverted",
         )
@@ -1237,14 +1281,7 @@ class _SphereEvaluator(_Evaluator):
                     for arg in node.args:
                         stack.append((arg, node))
                 continue  # other calls are checked by call()
-            if isinstance(node, Neg):
-                stack.append((node.operand, node))
-            elif isinstance(node, Pow):
-                stack.append((node.base, node))
-                stack.append((node.exponent, node))
-            elif isinstance(node, (Add, Sub, Mul, Div)):
-                stack.append((node.left, node))
-                stack.append((node.right, node))
+            stack.extend((kid, node) for kid in children(node))
 
     def abs_kind(self, node: Node) -> Optional[str]:
         """``"z"`` for ``abs(z)``, ``"1-z"`` for ``abs(1-z)``, else None."""
@@ -1277,13 +1314,17 @@ class _SphereEvaluator(_Evaluator):
         return super().symbol(node)
 
     def leaf(self, node: Node) -> Optional[_Value]:
-        if isinstance(node, (Add, Sub)) and _is_one_minus_x_shape(node, self.xname):
+        if isinstance(node, Sum) and _is_one_minus_x_shape(node, self.xname):
             raise self.interval_syntax(node, f"(1-{self.xname}) outside abs(...)")
         return super().leaf(node)
 
-    def check_sum(self, node: Node) -> None:
-        if self.is_bare_x(node.left) or self.is_bare_x(node.right):  # type: ignore[attr-defined]
-            raise self.interval_syntax(node, f"a bare {self.xname}")
+    def head(self, node: Node) -> Optional[Tuple[int, _Value]]:
+        if isinstance(node, Sum) and _has_one_minus_x_head(node, self.xname):
+            raise self.interval_syntax(node.prefix(1), f"(1-{self.xname}) outside abs(...)")
+        return None
+
+    def added_x(self, part: Node) -> LowEnergyError:
+        return self.interval_syntax(part, f"a bare {self.xname}")
 
     def call(self, node: Call) -> _Value:
         name, z = node.name, self.xname

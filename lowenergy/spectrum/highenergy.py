@@ -543,7 +543,7 @@ def parse_relation(text: str, orders: int, source: str = "--relation") -> Relati
     >>> sorted((k, str(v)) for k, v in r.poly.items())
     [((0, 1), '1'), ((2, 0), '-1/2')]
     """
-    from ..parse import Add, Call, Div, Mul, Neg, Num, Pow, Sub, Sym, fold, parse_expression, to_text
+    from ..parse import Call, Num, Rules, Sym, evaluate, parse_expression, to_text
     from ..zeta.expression import evaluate_tree
 
     if not isinstance(text, str) or text.count("=") != 1:
@@ -552,41 +552,44 @@ def parse_relation(text: str, orders: int, source: str = "--relation") -> Relati
     lhs_text, rhs_text = text.split("=")
     zero = (0,) * orders
 
-    def leaf(node):
-        if isinstance(node, Num):
-            return {zero: MZV.rational(node.value)}
-        if isinstance(node, Sym):
-            name = node.name
-            if name.startswith("A") and name[1:].isdigit() and 1 <= int(name[1:]) <= orders:
-                k = int(name[1:])
-                return {tuple(1 if i == k - 1 else 0 for i in range(orders)): MZV.one()}
-            raise InputError(f"unknown name {name!r} in the relation", source=source, term=name,
-                             hint=f"the names are A1 ... A{orders} (order k over order 0)")
-        if isinstance(node, Call) and node.name == "zeta":
-            return {zero: evaluate_tree(node)}
-        raise InputError(f"not allowed in a relation: {to_text(node)!r}", source=source, term=to_text(node)[:60],
-                         hint="use A1, A2, ..., numbers, zeta(...), + - * / ^")
+    class RelationRules(Rules):
+        def leaf(self, node):
+            if isinstance(node, Num):
+                return {zero: MZV.rational(node.value)}
+            if isinstance(node, Sym):
+                name = node.name
+                if name.startswith("A") and name[1:].isdigit() and 1 <= int(name[1:]) <= orders:
+                    k = int(name[1:])
+                    return {tuple(1 if i == k - 1 else 0 for i in range(orders)): MZV.one()}
+                raise InputError(f"unknown name {name!r} in the relation", source=source, term=name,
+                                 hint=f"the names are A1 ... A{orders} (order k over order 0)")
+            if isinstance(node, Call) and node.name == "zeta":
+                return {zero: evaluate_tree(node)}
+            if isinstance(node, Call):
+                raise InputError(f"not allowed in a relation: {to_text(node)!r}", source=source,
+                                 term=to_text(node)[:60], hint="use A1, A2, ..., numbers, zeta(...), + - * / ^")
+            return None
 
-    def inner(node, kids):
-        if isinstance(node, Call):
-            return leaf(node)
-        if isinstance(node, Neg):
-            return {k: -v for k, v in kids[0].items()}
-        if isinstance(node, Add):
-            return poly_add(kids[0], kids[1])
-        if isinstance(node, Sub):
-            return poly_add(kids[0], kids[1], -1)
-        if isinstance(node, Mul):
-            return poly_mul(kids[0], kids[1])
-        if isinstance(node, Div):
-            den = kids[1]
+        def neg(self, value, node):
+            return {k: -v for k, v in value.items()}
+
+        def add(self, a, b, node, k):
+            return poly_add(a, b)
+
+        def sub(self, a, b, node, k):
+            return poly_add(a, b, -1)
+
+        def mul(self, a, b, node, k):
+            return poly_mul(a, b)
+
+        def div(self, a, den, node, k):
             if set(den) - {zero} or not den or not den[zero].is_rational() or not den[zero]:
                 raise InputError("division only by non-zero rational numbers in a relation", source=source,
-                                 term=to_text(node)[:60], hint="multiply the relation through instead")
+                                 term=to_text(node.prefix(k))[:60], hint="multiply the relation through instead")
             q = den[zero].rational_value()
-            return {k: v * (1 / q) for k, v in kids[0].items()}
-        if isinstance(node, Pow):
-            ex = kids[1]
+            return {key: v * (1 / q) for key, v in a.items()}
+
+        def power(self, base, ex, node):
             if set(ex) - {zero} or (ex and not ex[zero].is_rational()):
                 raise InputError("powers must be non-negative integers", source=source, term=to_text(node)[:60])
             q = ex[zero].rational_value() if ex else Fraction(0)
@@ -594,16 +597,13 @@ def parse_relation(text: str, orders: int, source: str = "--relation") -> Relati
                 raise InputError("powers must be integers from 0 to 32", source=source, term=to_text(node)[:60])
             out = {zero: MZV.one()}
             for _ in range(int(q)):
-                out = poly_mul(out, kids[0])
+                out = poly_mul(out, base)
             return out
-        raise InputError(f"not allowed in a relation: {to_text(node)!r}", source=source)
 
-    def evaluate(part: str):
-        tree = parse_expression(part.strip(), source=source)
-        # zeta(...) calls are leaves here: fold would descend into their arguments
-        return fold(tree, leaf, lambda node, kids: leaf(node) if isinstance(node, Call) else inner(node, kids))
+    def evaluate_part(part: str):
+        return evaluate(parse_expression(part.strip(), source=source), RelationRules())
 
-    lhs, rhs = evaluate(lhs_text), evaluate(rhs_text)
+    lhs, rhs = evaluate_part(lhs_text), evaluate_part(rhs_text)
     monos = tuple(sorted(set(lhs) | set(rhs)))
     return Relation(text.strip(), poly_add(lhs, rhs, -1), monos)
 

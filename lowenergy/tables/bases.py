@@ -79,7 +79,7 @@ from typing import Dict, Iterable, Iterator, List, Optional, Sequence, Tuple, Un
 
 from ..errors import InputError, InternalError
 from ..linalg import DependentColumn, solve_gram
-from ..parse import Add, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression, to_text
+from ..parse import Call, Node, Num, Pow, Product, Rules, Sym, coefficient_reference, evaluate, parse_expression, to_text
 from ..poly import add as poly_add, mul as poly_mul, power as poly_power, total_degree as poly_degree, truncated as poly_truncated
 from ..zeta.element import MZV
 from ..zeta.format import join_terms, term_text
@@ -130,7 +130,6 @@ _MAX_EXPONENT = 256
 # names
 # --------------------------------------------------------------------------
 
-_NAME_RE = re.compile(r"^\s*(c|sym|sigma)\[\s*(-?\d{1,6})\s*,\s*(-?\d{1,6})\s*\]\s*$")
 
 
 def coefficient_name(i: int, j: int) -> str:
@@ -148,15 +147,17 @@ def element_name(kind: str, a: int, b: int) -> str:
 def parse_element_name(text: str) -> Optional[Tuple[str, int, int]]:
     """``("c" | "sym" | "sigma", a, b)`` for a built-in name, else ``None``.
 
-    Blanks around the numbers are tolerated; ``sym`` needs ``a >= b >= 0``
+    The syntax is that of coefficient references in the expression grammar
+    (:func:`lowenergy.parse.coefficient_reference`): blanks around the
+    numbers are tolerated; ``sym`` needs ``a >= b >= 0``
     and ``sigma`` needs ``a, b >= 0`` (otherwise ``None``).
     """
-    if not isinstance(text, str):
+    ref = coefficient_reference(text)
+    if ref is None or ref.family not in ("c", "sym", "sigma") or len(ref.indices) != 2:
         return None
-    m = _NAME_RE.match(text)
-    if not m:
+    kind, (a, b) = ref.family, ref.indices
+    if max(abs(a), abs(b)) >= 10**6:
         return None
-    kind, a, b = m.group(1), int(m.group(2)), int(m.group(3))
     if kind == "sym" and not (a >= b >= 0):
         return None
     if kind == "sigma" and (a < 0 or b < 0):
@@ -304,46 +305,52 @@ def parse_polynomial(
     def fail(node: Node, message: str, hint: Optional[str] = None) -> InputError:
         return InputError(message, source=source, line=line, column=node.col, term=to_text(node), hint=hint)
 
-    def leaf(node: Node) -> Poly2:
-        if isinstance(node, Num):
-            return {(0, 0): node.value} if node.value else {}
-        if isinstance(node, Sym):
-            if node.name not in names:
+    class PolynomialRules(Rules):
+        def leaf(self, node: Node) -> Optional[Poly2]:
+            if isinstance(node, Num):
+                return {(0, 0): node.value} if node.value else {}
+            if isinstance(node, Sym):
+                if node.name not in names:
+                    raise fail(
+                        node,
+                        f"unknown name {node.name!r} in a basis polynomial",
+                        f"basis polynomials use {allowed} and rational numbers only",
+                    )
+                return dict(names[node.name])
+            if isinstance(node, Call):
                 raise fail(
                     node,
-                    f"unknown name {node.name!r} in a basis polynomial",
-                    f"basis polynomials use {allowed} and rational numbers only",
+                    f"function {node.name!r} is not allowed in a basis polynomial",
+                    "basis polynomials have rational coefficients; MZVs belong to the coefficients",
                 )
-            return dict(names[node.name])
-        raise fail(
-            node,
-            f"function {node.name!r} is not allowed in a basis polynomial",
-            "basis polynomials have rational coefficients; MZVs belong to the coefficients",
-        )
+            return None
 
-    def inner(node: Node, vals: List[Poly2]) -> Poly2:
-        if isinstance(node, Neg):
-            return {k: -v for k, v in vals[0].items()}
-        if isinstance(node, Add):
-            return poly_add(vals[0], vals[1])
-        if isinstance(node, Sub):
-            return poly_add(vals[0], vals[1], Fraction(-1))
-        if isinstance(node, Mul):
-            a, b = vals
+        def neg(self, value: Poly2, node: Node) -> Poly2:
+            return {k: -v for k, v in value.items()}
+
+        def add(self, a: Poly2, b: Poly2, node: Node, k: int) -> Poly2:
+            return poly_add(a, b)
+
+        def sub(self, a: Poly2, b: Poly2, node: Node, k: int) -> Poly2:
+            return poly_add(a, b, Fraction(-1))
+
+        def mul(self, a: Poly2, b: Poly2, node: Product, k: int) -> Poly2:
             if poly_degree(a) + poly_degree(b) > MAX_BASIS_DEGREE:
-                raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
+                raise fail(node.prefix(k), f"degree larger than {MAX_BASIS_DEGREE}")
             if len(a) * len(b) > _MAX_PRODUCT:
-                raise fail(node, "polynomial too large")
+                raise fail(node.prefix(k), "polynomial too large")
             return poly_mul(a, b)
-        if isinstance(node, Div):
-            q = _constant(vals[1])
+
+        def div(self, a: Poly2, b: Poly2, node: Product, k: int) -> Poly2:
+            q = _constant(b)
             if q is None:
-                raise fail(node.right, "division by a non-constant", "divide by non-zero rational numbers only")
+                raise fail(node.items[k], "division by a non-constant", "divide by non-zero rational numbers only")
             if q == 0:
-                raise fail(node.right, "division by zero")
-            return {k: v / q for k, v in vals[0].items()}
-        if isinstance(node, Pow):
-            e = _constant(vals[1])
+                raise fail(node.items[k], "division by zero")
+            return {key: v / q for key, v in a.items()}
+
+        def power(self, base: Poly2, exponent: Poly2, node: Pow) -> Poly2:
+            e = _constant(exponent)
             if e is None or e.denominator != 1 or e < 0:
                 raise fail(
                     node.exponent,
@@ -351,15 +358,13 @@ def parse_polynomial(
                     "write e.g. s^2",
                 )
             n = int(e)
-            base = vals[0]
             if n > _MAX_EXPONENT:
                 raise fail(node.exponent, f"exponent larger than {_MAX_EXPONENT}")
             if n and poly_degree(base) * n > MAX_BASIS_DEGREE:
                 raise fail(node, f"degree larger than {MAX_BASIS_DEGREE}")
             return _ppow(base, n)
-        raise fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
 
-    return fold(tree, leaf, inner)
+    return evaluate(tree, PolynomialRules())
 
 
 # --------------------------------------------------------------------------

@@ -61,7 +61,7 @@ import mpmath
 from ..errors import InputError, LowEnergyError, ParseError
 from ..fileio import write_atomic
 from ..limits import MAX_CSV_BYTES, MAX_CSV_ROWS, MAX_DECIMAL_EXPONENT, MAX_NUMERIC_DIGITS, MAX_NUMERIC_WORK
-from ..parse import Mul, Num, Pow, Sym, parse_expression
+from ..parse import Num, Pow, Product, Sym, coefficient_reference, parse_expression
 from ..expansion.result import u_pole_name
 from ..zeta.element import MZV
 from .bases import (
@@ -111,7 +111,6 @@ MAX_ORDER = 1000
 _MAGIC = "# lowenergy coefficient table"
 _MAX_CSV_BYTES = MAX_CSV_BYTES
 _IDENT = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
-_UPOLE_NAME = re.compile(r"c\[\s*(-?\d{1,6})\s*,\s*0\s*,\s*(-?\d{1,6})\s*\]\Z")
 
 ParamPoly = Dict[Tuple[int, ...], MZV]
 PathLike = Union[str, "os.PathLike[str]"]
@@ -498,12 +497,11 @@ class _CsvReader:
         except LowEnergyError as err:
             err.hint = err.hint or hint
             raise
-        factors = []
-        stack = [tree]
-        while stack:
+        factors, stack = [], [tree]
+        while stack:  # the factors of products, parenthesized ones included (a divisor is not a factor)
             node = stack.pop()
-            if isinstance(node, Mul):
-                stack += [node.right, node.left]
+            if isinstance(node, Product) and "/" not in node.ops:
+                stack += reversed(node.items)
             else:
                 factors.append(node)
         for f in factors:
@@ -705,9 +703,12 @@ class _CsvReader:
             )
         seen[key] = line
 
-        upole = _UPOLE_NAME.match(name)
-        if upole:
-            i, k = int(upole.group(1)), int(upole.group(2))
+        upole = coefficient_reference(name)
+        if upole is not None and not (upole.family == "c" and len(upole.indices) == 3 and upole.indices[1] == 0
+                                      and max(map(abs, upole.indices)) < 10**6):
+            upole = None
+        if upole is not None:
+            i, k = upole.indices[0], upole.indices[2]
             if kind != "pole" or k >= 0 or i < 0:
                 raise self.error(f"{name} is not a U-channel pole row", line, name,
                                  hint="c[i,0,k] with i >= 0, k < 0 and kind pole")

@@ -9,7 +9,7 @@ powers in each term (``π^2 = 6 ζ(2)``); division is by rationals only;
 exponents are non-negative integers (negative ones only for rationals).
 
 Nothing is evaluated as Python code: the tree from the hand-written parser
-is walked here node by node, without recursion.
+is evaluated by :func:`lowenergy.parse.evaluate` with the rules here.
 
 >>> print(evaluate("zeta(2,1) - zeta(3)"))
 0
@@ -23,7 +23,8 @@ from fractions import Fraction
 from typing import Dict
 
 from ..errors import InputError, LowEnergyError, RegularizationError
-from ..parse import Add, Call, Div, Mul, Neg, Node, Num, Pow, Sub, Sym, fold, parse_expression
+from ..parse import Call, Coef, Node, Num, Pow, Product, Rules, Sym, parse_expression
+from ..parse import evaluate as evaluate_tree_value
 from ..poly import add as poly_add, add_term
 from .element import MZV, g_value, zeta
 from .table import TableStore
@@ -192,74 +193,88 @@ def sv_of_tree(node: Call, fail, *, regularize: str | None = None, store: TableS
         raise err.located(column=node.col)
 
 
-def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStore | None = None) -> MZV:
-    """Evaluate a parsed tree (iteratively; see :func:`evaluate`)."""
+class _MZVRules(Rules):
+    """:func:`lowenergy.parse.evaluate` over ``{power of pi: MZV}`` values."""
 
-    budget = [0]
+    def __init__(self, regularize: str | None, store: TableStore | None) -> None:
+        self.regularize = regularize
+        self.store = store
+        self.budget = [0]
 
-    def leaf(node: Node) -> PiValue:
+    def leaf(self, node: Node) -> PiValue | None:
         if isinstance(node, Num):
             return {0: MZV.rational(node.value)} if node.value else {}
         if isinstance(node, Sym):
             if node.name == "pi":
                 return {1: MZV.one()}
             raise _fail(node, f"unknown name {node.name!r}", "numbers here use zeta(...), G(...; 1) and pi")
+        if isinstance(node, Coef):
+            raise _fail(node, "coefficients are not numbers", "numbers here use zeta(...), G(...; 1) and pi")
+        if not isinstance(node, Call):
+            return None
         if node.name == "zeta":
-            return _zeta_call(node, regularize, store)
+            return _zeta_call(node, self.regularize, self.store)
         if node.name == "G":
-            return _g_call(node, store)
+            return _g_call(node, self.store)
         if node.name == "sv":
-            return {0: sv_of_tree(node, _fail, regularize=regularize, store=store)}
+            return {0: sv_of_tree(node, _fail, regularize=self.regularize, store=self.store)}
         raise _fail(node, f"unknown function {node.name!r}", "known here: zeta(...), G(...; 1), sv(...)")
 
-    def inner(node: Node, vals: list) -> PiValue:
-        if isinstance(node, Neg):
-            return {p: -x for p, x in vals[0].items()}
-        if isinstance(node, Add):
-            return _add(vals[0], vals[1])
-        if isinstance(node, Sub):
-            return _add(vals[0], vals[1], -1)
-        if isinstance(node, Mul):
-            try:
-                return _checked(_mul(vals[0], vals[1], budget))
-            except LowEnergyError as err:
-                raise err.located(column=node.col)
-        if isinstance(node, Div):
-            q = _rational_of(vals[1])
-            if q is None:
-                raise _fail(node.right, "division by a non-rational quantity", "divide by rational numbers only")
-            if q == 0:
-                raise _fail(node.right, "division by zero")
-            try:
-                return _checked({p: x / q for p, x in vals[0].items()})
-            except LowEnergyError as err:
-                raise err.located(column=node.col)
-        if isinstance(node, Pow):
-            e = _rational_of(vals[1])
-            if e is None or e.denominator != 1:
-                raise _fail(node.exponent, "exponents must be integers", "write e.g. zeta(3)^2")
-            n = int(e)
-            if abs(n) > MAX_EXPONENT:
-                raise _fail(node.exponent, f"exponent larger than {MAX_EXPONENT}")
-            if n < 0:
-                q = _rational_of(vals[0])
-                if q is None:
-                    raise _fail(node, "negative powers are allowed for rational numbers only")
-                if q == 0:
-                    raise _fail(node, "division by zero")
-                if abs(n) * max(q.numerator.bit_length(), q.denominator.bit_length()) > MAX_RATIONAL_BITS:
-                    raise _fail(node, f"number too large (more than {MAX_RATIONAL_BITS} bits)")
-                return {0: MZV.rational(q ** n)}
-            res = {0: MZV.one()}
-            try:
-                for _ in range(n):
-                    res = _checked(_mul(res, vals[0], budget))
-            except LowEnergyError as err:
-                raise err.located(column=node.col)
-            return res
-        raise _fail(node, f"unsupported syntax {type(node).__name__}")  # pragma: no cover
+    def neg(self, value: PiValue, node: Node) -> PiValue:
+        return {p: -x for p, x in value.items()}
 
-    final = fold(tree, leaf, inner)
+    def add(self, left: PiValue, right: PiValue, node: Node, k: int) -> PiValue:
+        return _add(left, right)
+
+    def sub(self, left: PiValue, right: PiValue, node: Node, k: int) -> PiValue:
+        return _add(left, right, -1)
+
+    def mul(self, left: PiValue, right: PiValue, node: Node, k: int) -> PiValue:
+        try:
+            return _checked(_mul(left, right, self.budget))
+        except LowEnergyError as err:
+            raise err.located(column=node.col)
+
+    def div(self, left: PiValue, right: PiValue, node: Product, k: int) -> PiValue:
+        divisor = node.items[k]
+        q = _rational_of(right)
+        if q is None:
+            raise _fail(divisor, "division by a non-rational quantity", "divide by rational numbers only")
+        if q == 0:
+            raise _fail(divisor, "division by zero")
+        try:
+            return _checked({p: x / q for p, x in left.items()})
+        except LowEnergyError as err:
+            raise err.located(column=node.col)
+
+    def power(self, base: PiValue, exponent: PiValue, node: Pow) -> PiValue:
+        e = _rational_of(exponent)
+        if e is None or e.denominator != 1:
+            raise _fail(node.exponent, "exponents must be integers", "write e.g. zeta(3)^2")
+        n = int(e)
+        if abs(n) > MAX_EXPONENT:
+            raise _fail(node.exponent, f"exponent larger than {MAX_EXPONENT}")
+        if n < 0:
+            q = _rational_of(base)
+            if q is None:
+                raise _fail(node, "negative powers are allowed for rational numbers only")
+            if q == 0:
+                raise _fail(node, "division by zero")
+            if abs(n) * max(q.numerator.bit_length(), q.denominator.bit_length()) > MAX_RATIONAL_BITS:
+                raise _fail(node, f"number too large (more than {MAX_RATIONAL_BITS} bits)")
+            return {0: MZV.rational(q ** n)}
+        res = {0: MZV.one()}
+        try:
+            for _ in range(n):
+                res = _checked(_mul(res, base, self.budget))
+        except LowEnergyError as err:
+            raise err.located(column=node.col)
+        return res
+
+
+def evaluate_tree(tree: Node, *, regularize: str | None = None, store: TableStore | None = None) -> MZV:
+    """Evaluate a parsed tree (with :func:`lowenergy.parse.evaluate`; see :func:`evaluate`)."""
+    final = evaluate_tree_value(tree, _MZVRules(regularize, store))
     total = MZV()
     for p, x in final.items():
         if p % 2:

@@ -12,6 +12,7 @@ from lowenergy.constraints import check, fix, read_constraints, required_order
 from lowenergy.constraints.model import CoefficientRef, constraints_from_text
 from lowenergy.errors import InputError, LowEnergyError, ParseError
 from lowenergy.zeta.element import MZV
+from lowenergy.parse import Coef, walk
 
 from .support import cset, eq, expansion
 
@@ -85,7 +86,9 @@ def test_references_keep_columns_and_text():
     cs = cset(eq("a", "3*c[ 2 , -1 ] + sym[1,1]", 0))
     first, second = cs.constraints[0].refs
     assert first == CoefficientRef("c", 2, -1) and first.text == "c[ 2 , -1 ]" and first.column == 3
-    assert len(first.placeholder) == len(first.text)
+    # the reference is a Coef node of the tree at its own column (no placeholder text)
+    coefs = [n for n in walk(cs.constraints[0].tree) if isinstance(n, Coef)]
+    assert [(n.family, n.indices, n.col) for n in coefs] == [("c", (2, -1), 3), ("sym", (1, 1), 17)]
     assert second.column == 17 and second.name == "sym[1,1]"
 
 
@@ -101,13 +104,13 @@ def test_required_order_of_empty_and_pole_only_sets():
     assert required_order([]) == 0
 
 
-def test_placeholders_cannot_be_typed_by_the_user():
-    # the placeholder of c[0,0] is a 6-character identifier starting with _k;
-    # typing such a name elsewhere is just an unknown name
+def test_identifiers_never_stand_for_coefficients():
+    # references are Coef nodes of the grammar; an identifier spelled like the
+    # placeholders earlier versions substituted (_k0___) is just an unknown name
     c = cset(eq("a", "c[0,0]", 0)).constraints[0]
-    name = c.refs[0].placeholder
+    assert c.tree == Coef("c", (0, 0)) and c.ref_for(c.tree) == c.refs[0]
     with pytest.raises(InputError, match="unknown name"):
-        cset(eq("a", f"c[0,0] + {name}", 0))
+        cset(eq("a", "c[0,0] + _k0___", 0))
 
 
 def test_messages_show_the_coefficient_names_not_placeholders():

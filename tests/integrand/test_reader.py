@@ -234,6 +234,27 @@ def test_term_text_and_lines():
     assert len(term.text) <= 60
 
 
+def test_one_minus_x_at_the_start_of_a_longer_sum_is_the_binomial():
+    # 1 - x + s is (1-x) + s, as when + and - were binary nodes (now one n-ary sum)
+    def shape(text):
+        return [(t.coefficient, t.x_exp, t.y_exp, t.word) for t in terms_from_expression(text)]
+
+    assert shape("1 - x + s") == shape("(1 - x) + s") == [
+        ({(0, 0): R(1)}, LinearExponent(0), LinearExponent(1), ()),
+        ({(1, 0): R(1)}, LinearExponent(0), LinearExponent(0), ()),
+    ]
+    assert shape("-x + 1 - s") == shape("(1 - x) - s")
+    with pytest.raises(InputError, match="x is added to other terms") as info:
+        terms_from_expression("s + x + t")
+    assert (info.value.column, info.value.term) == (1, "s + x")  # the sum up to the offending term
+
+
+def test_errors_in_long_products_name_the_product_up_to_the_failing_factor():
+    with pytest.raises(InputError, match="would contain both s and t") as info:
+        terms_from_expression("s*x^(-s-1)*x^(-t)*t*s")
+    assert (info.value.column, info.value.term) == (1, "s*x^(-s - 1)*x^(-t)")
+
+
 def test_long_flat_sum_is_not_recursive():
     text = "x^(-s-1)*(" + "+".join(f"s^{k % 7}" for k in range(12000)) + ")"
     (term,) = terms_from_expression(text)
