@@ -168,6 +168,8 @@ from ..errors import InputError
 from ..expansion.engine import embeddings, raw_series, words_with_counts
 from ..expansion.result import Expansion, add_term
 from ..integrand.model import Integrand, LinearExponent, Term
+from ..poly import add_into as _radd
+from ..poly import add_term as _add_to
 from ..zeta.element import MZV, g_value
 from ..zeta.table import TableStore, default_store
 from .construct import _cmul
@@ -188,15 +190,6 @@ Word = Tuple[int, ...]
 METHODS = ("sv", "direct")
 
 _Raw = Dict[tuple, Fraction]
-
-
-def _radd(acc: _Raw, x: _Raw, f=1) -> None:
-    for k, v in x.items():
-        y = acc.get(k, 0) + f * v
-        if y:
-            acc[k] = y
-        else:
-            acc.pop(k, None)
 
 
 class SphereValues:
@@ -890,14 +883,6 @@ def _mono(var: Optional[int], power: int) -> Tuple[int, int]:
     return (power, 0) if var == 0 else (0, power)
 
 
-def _add_to(target, key, value: MZV) -> None:
-    if not value:
-        return
-    y = target.get(key, MZV()) + value
-    if y:
-        target[key] = y
-    else:
-        target.pop(key, None)
 
 
 def _shifted_series(x_exp: LinearExponent, y_exp: LinearExponent, word: Word, order: int,

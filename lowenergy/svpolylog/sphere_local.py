@@ -51,6 +51,7 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Callable, Dict, Tuple
 
+from ..poly import add_into as _radd
 from .construct import _cmul
 
 __all__ = ["POINTS", "LocalExpansion", "omega"]
@@ -79,15 +80,6 @@ def omega(point: str, letter: int, top: int) -> Dict[int, Fraction]:
             out.update({n: Fraction(-1) for n in range(top + 1)})
         return out
     raise ValueError(f"unknown point {point!r}")
-
-
-def _radd(acc: Raw, x: Raw, f) -> None:
-    for k, v in x.items():
-        y = acc.get(k, 0) + f * v
-        if y:
-            acc[k] = y
-        else:
-            acc.pop(k, None)
 
 
 class LocalExpansion:
