@@ -192,6 +192,40 @@ METHODS = ("sv", "direct")
 _Raw = Dict[tuple, Fraction]
 
 
+def _mono(var: Optional[int], power: int) -> Tuple[int, int]:
+    """The exponents ``(i, j)`` of ``S^i T^j`` for ``var^power`` (var 0 = S, 1 = T, None = 1)."""
+    if var is None or power == 0:
+        return (0, 0)
+    return (power, 0) if var == 0 else (0, power)
+
+
+def _regular_slots(word: Word, order: int, x_exp: LinearExponent, y_exp: LinearExponent):
+    """The terms of the regular part (module docstring, steps 1 and 3).
+
+    The coefficient of ``(c v)^m (d v')^n`` is a sum over the words ``u`` of
+    ``0^m ш 1^n ш word`` with multiplicities; yields ``((i, j), scale,
+    [(u, mult), ...])`` for every ``S^i T^j`` with ``i + j ≤ order``, where
+    ``scale = c^m d^n``.
+    """
+    c, vx = x_exp.coeff, x_exp.var
+    d, vy = y_exp.coeff, y_exp.var
+    zeros_w = sum(1 for letter in word if letter == 0)
+    ones_w = len(word) - zeros_w
+    for m in range(0, (order if vx is not None else 0) + 1):
+        for n in range(0, ((order - m) if vy is not None else 0) + 1):
+            e1, e2 = _mono(vx, m), _mono(vy, n)
+            i, j = e1[0] + e2[0], e1[1] + e2[1]
+            if i + j > order:
+                continue
+            pairs = []
+            for u in words_with_counts(m + zeros_w, n + ones_w):
+                mult = embeddings(word, u)
+                if mult:
+                    pairs.append((u, mult))
+            scale = (Fraction(c) ** m if m else Fraction(1)) * (Fraction(d) ** n if n else Fraction(1))
+            yield (i, j), scale, pairs
+
+
 class SphereValues:
     """Regularized values at 1 and ∞ used by the engine, with memoization.
 
@@ -353,19 +387,7 @@ def sphere_raw_series(
     out: Series = {}
     upoles: UPoles = {}
 
-    def add(target, key, value: MZV) -> None:
-        if not value:
-            return
-        y = target.get(key, MZV()) + value
-        if y:
-            target[key] = y
-        else:
-            target.pop(key, None)
-
-    def mono(var: Optional[int], power: int) -> Tuple[int, int]:
-        if var is None or power == 0:
-            return (0, 0)
-        return (power, 0) if var == 0 else (0, power)
+    add, mono = _add_to, _mono
 
     # ---- the route through the interval expansion (a = b = 0) ---------------
     if values.kind == "sv" and a == 0 and b == 0:
@@ -435,32 +457,19 @@ def sphere_raw_series(
                     add(upoles, (0, -power), ej * (Fraction(1) / c ** power))
 
     # ---- regular part -----------------------------------------------------------
-    zeros_w = sum(1 for letter in word if letter == 0)
-    ones_w = len(word) - zeros_w
-    max_m = order if vx is not None else 0
-    for m in range(0, max_m + 1):
-        max_n = (order - m) if vy is not None else 0
-        for n in range(0, max_n + 1):
-            e1, e2 = mono(vx, m), mono(vy, n)
-            i, j = e1[0] + e2[0], e1[1] + e2[1]
-            if i + j > order:
-                continue
-            acc: _Raw = {}
-            for u in words_with_counts(m + zeros_w, n + ones_w):
-                mult = embeddings(word, u)
-                if not mult:
-                    continue
-                if a == 0 and b == 0:
-                    _radd(acc, values.z_raw((0,) + u), mult)
-                    _radd(acc, values.z_raw((1,) + u), -mult)
-                elif a == 1:
-                    _radd(acc, values.k_raw((1,) + u), mult)
-                    _radd(acc, values.z_raw((1,) + u), -mult)
-                else:
-                    _radd(acc, values.k_raw((0,) + u), mult)
-            if acc:
-                scale = (c ** m if m else Fraction(1)) * (d ** n if n else Fraction(1))
-                add(out, (i, j), values.finish(MZV(acc)) * scale)
+    for key, scale, pairs in _regular_slots(word, order, x_exp, y_exp):
+        acc: _Raw = {}
+        for u, mult in pairs:
+            if a == 0 and b == 0:
+                _radd(acc, values.z_raw((0,) + u), mult)
+                _radd(acc, values.z_raw((1,) + u), -mult)
+            elif a == 1:
+                _radd(acc, values.k_raw((1,) + u), mult)
+                _radd(acc, values.z_raw((1,) + u), -mult)
+            else:
+                _radd(acc, values.k_raw((0,) + u), mult)
+        if acc:
+            add(out, key, values.finish(MZV(acc)) * scale)
     return out, upoles
 
 
@@ -877,22 +886,11 @@ def expand_sphere(
     return Expansion.of_integrand(integrand, order, result, u_poles=upoles, domain="sphere")
 
 
-def _mono(var: Optional[int], power: int) -> Tuple[int, int]:
-    if var is None or power == 0:
-        return (0, 0)
-    return (power, 0) if var == 0 else (0, power)
-
-
 
 
 def _shifted_series(x_exp: LinearExponent, y_exp: LinearExponent, word: Word, order: int,
                     values: SphereValues, a: int, b: int) -> Tuple[Series, UPoles]:
     """:func:`sphere_raw_series` for any integer shifts (steps 5 and 6 of the module docstring)."""
-    c, vx = Fraction(x_exp.coeff), x_exp.var
-    d, vy = Fraction(y_exp.coeff), y_exp.var
-    zeros_w = sum(1 for letter in word if letter == 0)
-    ones_w = len(word) - zeros_w
-    max_m = order if vx is not None else 0
     longest = len(word) + max(order, 0) + 1
     engine = values._engines.get((a, b))
     if engine is None or engine.max_weight < longest:
@@ -901,19 +899,10 @@ def _shifted_series(x_exp: LinearExponent, y_exp: LinearExponent, word: Word, or
     out: Series = {}
     upoles: UPoles = {}
     _shifted_poles(engine, x_exp, y_exp, word, order, out, upoles, _add_to, _mono)
-    for m in range(0, max_m + 1):
-        max_n = (order - m) if vy is not None else 0
-        for n in range(0, max_n + 1):
-            e1, e2 = _mono(vx, m), _mono(vy, n)
-            i, j = e1[0] + e2[0], e1[1] + e2[1]
-            if i + j > order:
-                continue
-            acc: _Raw = {}
-            for u in words_with_counts(m + zeros_w, n + ones_w):
-                mult = embeddings(word, u)
-                if mult:
-                    _radd(acc, engine.regular(u), mult)
-            if acc:
-                scale = (c ** m if m else Fraction(1)) * (d ** n if n else Fraction(1))
-                _add_to(out, (i, j), MZV(acc) * scale)
+    for key, scale, pairs in _regular_slots(word, order, x_exp, y_exp):
+        acc: _Raw = {}
+        for u, mult in pairs:
+            _radd(acc, engine.regular(u), mult)
+        if acc:
+            _add_to(out, key, MZV(acc) * scale)
     return out, upoles
