@@ -314,6 +314,19 @@ class ResidueTable:
     meta: dict = field(default_factory=dict)
     u_poles: Dict[Fraction, Dict[int, ResiduePoly]] = field(default_factory=dict)
 
+    @classmethod
+    def of_integrand(cls, integrand, levels: int, poles, **extra) -> "ResidueTable":
+        """A table with the names, title and source of ``integrand``."""
+        return cls(
+            variables=tuple(integrand.variables),
+            parameters=tuple(integrand.parameters),
+            levels=levels,
+            poles=poles,
+            title=integrand.title,
+            source=integrand.source,
+            **extra,
+        )
+
     @property
     def u_name(self) -> str:
         """The name of the third Mandelstam variable in the rows (``U``, or ``u_`` if taken)."""
@@ -453,29 +466,16 @@ class ResidueTable:
         string, ``digits`` significant digits).
         """
         rows: List[Dict[str, object]] = []
-        for (v, p) in sorted(self.poles):
-            for m in sorted(self.poles[(v, p)], reverse=True):
-                rpoly = self.poles[(v, p)][m]
+        places = [(self.variables[v], p, self.poles[(v, p)]) for (v, p) in sorted(self.poles)]
+        places += [(self.u_name, p, self.u_poles[p]) for p in sorted(self.u_poles)]
+        for name, p, orders in places:
+            for m in sorted(orders, reverse=True):
+                rpoly = orders[m]
                 for power in sorted(rpoly):
                     for pkey in sorted(rpoly[power]):
                         coef = rpoly[power][pkey]
                         rows.append({
-                            "variable": self.variables[v],
-                            "location": fraction_text(p),
-                            "order": m,
-                            "power": power,
-                            "param": _param_text(pkey, self.parameters),
-                            "exact": coef.to_text(),
-                            "numeric": _numeric_text(coef, digits),
-                        })
-        for p in sorted(self.u_poles):
-            for m in sorted(self.u_poles[p], reverse=True):
-                rpoly = self.u_poles[p][m]
-                for power in sorted(rpoly):
-                    for pkey in sorted(rpoly[power]):
-                        coef = rpoly[power][pkey]
-                        rows.append({
-                            "variable": self.u_name,
+                            "variable": name,
                             "location": fraction_text(p),
                             "order": m,
                             "power": power,
@@ -884,11 +884,4 @@ def residues(integrand: Integrand, levels: int, *, store: TableStore | None = No
             poles[place] = orders
         else:
             del poles[place]
-    return ResidueTable(
-        variables=tuple(integrand.variables),
-        parameters=tuple(integrand.parameters),
-        levels=levels,
-        poles=poles,
-        title=integrand.title,
-        source=integrand.source,
-    )
+    return ResidueTable.of_integrand(integrand, levels, poles)

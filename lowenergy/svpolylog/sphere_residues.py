@@ -330,13 +330,4 @@ def sphere_residues(integrand: Integrand, levels: int, *, store: TableStore | No
             raise err.located(source=integrand.source, line=term.source_line, term=term.text)
     poles = group_pole_numerators(raw, lambda place: 1 - place[0])
     upoles = {p: orders for (_v, p), orders in group_pole_numerators(uraw, lambda place: 0).items()}
-    return ResidueTable(
-        variables=tuple(integrand.variables),
-        parameters=tuple(integrand.parameters),
-        levels=levels,
-        poles=poles,
-        title=integrand.title,
-        source=integrand.source,
-        meta={"domain": "sphere"},
-        u_poles=upoles,
-    )
+    return ResidueTable.of_integrand(integrand, levels, poles, meta={"domain": "sphere"}, u_poles=upoles)
