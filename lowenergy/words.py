@@ -49,6 +49,7 @@ __all__ = [
     "compositions",
     "admissible_indices",
     "all_words",
+    "ones_relaxed",
     "shuffle",
     "stuffle",
     "shuffle_many",
@@ -145,6 +146,28 @@ def admissible_indices(weight: int) -> list[Indices]:
 def all_words(length: int) -> list[Word]:
     """All 2^length words of a length, in lexicographic order."""
     return [tuple((k >> (length - 1 - i)) & 1 for i in range(length)) for k in range(2 ** length)]
+
+
+def ones_relaxed(word: Word):
+    """The words ``v`` with ``v_i = 0`` wherever ``word_i = 0`` (each letter 1
+    of ``word`` kept or turned into 0), with the sign ``(-1)^(zeros of v)``.
+
+    This is the coefficient pattern of the substitution ``φ: x0 -> -x0 - x1,
+    x1 -> x1``: the coefficient of ``x_word`` in ``φ(Σ_v Z(v) x_v)`` is
+    ``Σ sign · Z(v)`` over these pairs.  Order: the subsets of the ones as
+    binary numbers, the first 1 of ``word`` the lowest bit.
+
+    >>> list(ones_relaxed((0, 1, 1)))
+    [((0, 0, 0), -1), ((0, 1, 0), 1), ((0, 0, 1), 1), ((0, 1, 1), -1)]
+    """
+    ones = [i for i, a in enumerate(word) if a == 1]
+    for mask in range(1 << len(ones)):
+        v = [0] * len(word)
+        for bit, pos in enumerate(ones):
+            if mask >> bit & 1:
+                v[pos] = 1
+        zeros = len(word) - bin(mask).count("1")
+        yield tuple(v), (-1 if zeros % 2 else 1)
 
 
 # --------------------------------------------------------------------------

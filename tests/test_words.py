@@ -227,3 +227,25 @@ def test_closed_form_is_a_shuffle_homomorphism_on_longer_words(u, v):
             for w, m in shuffle(a, b).items():
                 add_into(rhs, regularize_word(w), ca * cb * m)
     assert lhs == rhs
+
+
+def test_ones_relaxed_is_the_transpose_of_phi():
+    # φ: x0 -> -x0 - x1, x1 -> x1 applied letter by letter to x_v; the
+    # coefficient of x_w in φ(x_v) must be the sign ones_relaxed(w) gives v.
+    from itertools import product
+
+    from lowenergy.words import all_words, ones_relaxed
+
+    for n in range(5):
+        image = {}
+        for v in all_words(n):
+            expansion = {(): 1}
+            for letter in v:
+                choices = ((0, -1), (1, -1)) if letter == 0 else ((1, 1),)
+                expansion = {w + (a,): c * s for (w, c), (a, s) in product(expansion.items(), choices)}
+            for w, c in expansion.items():
+                image[(w, v)] = c
+        for w in all_words(n):
+            got = dict(ones_relaxed(w))
+            want = {v: c for (ww, v), c in image.items() if ww == w}
+            assert got == want

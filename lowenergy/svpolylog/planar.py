@@ -66,7 +66,7 @@ import mpmath
 from flint import acb, acb_poly, arb, ctx, fmpq
 
 from ..errors import InputError, NumericError
-from ..words import all_words, shuffle
+from ..words import all_words, ones_relaxed, shuffle
 from ..zeta.table import TableStore
 from .construct import Word, sv_table, sv_value_at_one
 
@@ -266,16 +266,10 @@ class PlaneValues:
             hit = cache.get(p)
             if hit is not None:
                 return hit
-            ones = [i for i, a in enumerate(p) if a == 1]
             total = acb(0)
-            for mask in range(1 << len(ones)):
-                v = [0] * len(p)
-                for bit, pos in enumerate(ones):
-                    if mask >> bit & 1:
-                        v[pos] = 1
-                zeros = len(p) - bin(mask).count("1")
-                x = base[tuple(v)]
-                total += -x if zeros % 2 else x
+            for v, sign in ones_relaxed(p):
+                x = base[v]
+                total += x if sign > 0 else -x
             cache[p] = total
             return total
 

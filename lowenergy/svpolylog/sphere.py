@@ -170,6 +170,7 @@ from ..expansion.result import Expansion, add_term
 from ..integrand.model import Integrand, LinearExponent, Term
 from ..poly import add_into as _radd
 from ..poly import add_term as _add_to
+from ..words import ones_relaxed
 from ..zeta.element import MZV, g_value
 from ..zeta.table import TableStore, default_store
 from .construct import _cmul
@@ -265,15 +266,9 @@ class SphereValues:
         got = self._phi.get(w)
         if got is not None:
             return got
-        ones = [i for i, a in enumerate(w) if a == 1]
         acc: _Raw = {}
-        for mask in range(1 << len(ones)):
-            v = [0] * len(w)
-            for bit, pos in enumerate(ones):
-                if mask >> bit & 1:
-                    v[pos] = 1
-            zeros = len(w) - bin(mask).count("1")
-            _radd(acc, self.z_raw(tuple(v)), -1 if zeros % 2 else 1)
+        for v, sign in ones_relaxed(w):
+            _radd(acc, self.z_raw(v), sign)
         self._phi[w] = acc
         return acc
 

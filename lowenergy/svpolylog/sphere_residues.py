@@ -101,6 +101,7 @@ from ..spectrum.residues import (
     group_pole_numerators,
     poles_from_expansions,
 )
+from ..words import ones_relaxed
 from ..zeta.element import MZV
 from ..zeta.table import TableStore, default_store
 from .construct import sv_polylog
@@ -173,14 +174,8 @@ def words_at_infinity(word: Word, values: SphereValues) -> Dict[Word, MZV]:
         value = values.k(q)
         if not value:
             continue
-        ones = [i for i, a in enumerate(p) if a == 1]
-        for mask in range(1 << len(ones)):
-            v = [0] * len(p)
-            for bit, pos in enumerate(ones):
-                if mask >> bit & 1:
-                    v[pos] = 1
-            zeros = len(p) - bin(mask).count("1")
-            _padd(out, tuple(v), -value if zeros % 2 else value)
+        for v, sign in ones_relaxed(p):
+            _padd(out, v, value if sign > 0 else -value)
     return out
 
 
